@@ -1,0 +1,3 @@
+import { StudiesScreen } from '../../features/studies/StudiesScreen';
+
+export default StudiesScreen;

@@ -1,0 +1,3 @@
+import { StudyOverviewScreen } from '../../../../features/studies/StudyOverviewScreen';
+
+export default StudyOverviewScreen;

@@ -1,0 +1,3 @@
+import { TeamScreen } from '../../../../features/team/TeamScreen';
+
+export default TeamScreen;

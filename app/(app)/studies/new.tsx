@@ -1,0 +1,3 @@
+import { NewStudyScreen } from '../../../features/studies/NewStudyScreen';
+
+export default NewStudyScreen;

@@ -1,0 +1,3 @@
+import { InvitationScreen } from '../../../features/invitations/InvitationScreen';
+
+export default InvitationScreen;

@@ -1,0 +1,32 @@
+import { useFonts } from 'expo-font';
+import { Slot } from 'expo-router';
+import { StatusBar } from 'expo-status-bar';
+import { View } from 'react-native';
+import { SafeAreaProvider } from 'react-native-safe-area-context';
+import { SWRConfig } from 'swr';
+import { swrOptions } from '../features/api/swr';
+import { SessionProvider } from '../features/auth/session';
+import { colors } from '../features/ui/theme';
+
+export default function RootLayout() {
+  // The shipped font files (fonts/, OFL); nothing is fetched from a font host.
+  const [loaded, error] = useFonts({
+    'Atkinson-Regular': require('../fonts/AtkinsonHyperlegible_400Regular.ttf'),
+    'Atkinson-Bold': require('../fonts/AtkinsonHyperlegible_700Bold.ttf'),
+    'PlexMono-Regular': require('../fonts/IBMPlexMono_400Regular.ttf'),
+    'PlexMono-Medium': require('../fonts/IBMPlexMono_500Medium.ttf'),
+  });
+  if (!loaded && !error) return <View style={{ flex: 1, backgroundColor: colors.paper }} />;
+  return (
+    <SafeAreaProvider style={{ backgroundColor: colors.paper }}>
+      <SWRConfig value={swrOptions}>
+        <SessionProvider>
+          <StatusBar style="dark" />
+          <View style={{ flex: 1, backgroundColor: colors.paper }}>
+            <Slot />
+          </View>
+        </SessionProvider>
+      </SWRConfig>
+    </SafeAreaProvider>
+  );
+}

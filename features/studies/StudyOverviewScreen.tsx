@@ -1,0 +1,99 @@
+import { useLocalSearchParams } from 'expo-router';
+import { View } from 'react-native';
+import { can } from '../../shared/api';
+import { roleDescriptions, roleLabel, roleTones } from '../team/roles';
+import { Badge } from '../ui/Badge';
+import { Button } from '../ui/Button';
+import { Card } from '../ui/Card';
+import { formatDate } from '../ui/format';
+import { Icon } from '../ui/icons';
+import { Loading, LoadError } from '../ui/Loading';
+import { Screen } from '../ui/Screen';
+import { Text } from '../ui/Text';
+import { TextLink } from '../ui/TextLink';
+import { colors } from '../ui/theme';
+import { space } from '../ui/tokens';
+import { useBreakpoint } from '../ui/useBreakpoint';
+import { parseStudyId, useStudy } from './queries';
+import { StudyNotFound } from './StudyNotFound';
+
+/** The parts of a study that later features fill in; each says plainly that it is not there yet. */
+const plannedSections = [
+  { key: 'data', title: 'Data', what: 'Upload the waves, actors and covariates of the network.' },
+  { key: 'models', title: 'Models', what: 'Choose effects and fit a model by the method of moments.' },
+  { key: 'batches', title: 'Batches', what: 'Simulate a fitted model many times and compare with the next wave.' },
+  { key: 'board', title: 'Review board', what: 'Give each auxiliary statistic a verdict together, then sign off the report.' },
+];
+
+function Figure({ label, value }: { label: string; value: number }) {
+  return (
+    <View style={{ minWidth: 96, gap: 2 }}>
+      <Text variant="figureLarge">{value}</Text>
+      <Text variant="caption">{label}</Text>
+    </View>
+  );
+}
+
+export function StudyOverviewScreen() {
+  const params = useLocalSearchParams<{ studyId: string }>();
+  const studyId = parseStudyId(params.studyId);
+  const { data, error, isLoading, mutate } = useStudy(studyId);
+  const { compact } = useBreakpoint();
+
+  if (studyId === null || error?.status === 404 || error?.status === 403) return <StudyNotFound />;
+  const study = data?.study;
+
+  return (
+    <Screen
+      overline="Study"
+      title={study?.name ?? 'Study'}
+      subtitle={study ? `Updated ${formatDate(study.updatedAt)}` : undefined}
+      above={<TextLink href="/">← All studies</TextLink>}
+      actions={study ? <Button label="Team" icon="team" variant="secondary" href={`/studies/${study.id}/team`} /> : undefined}
+    >
+      {error ? <LoadError message={error.message} onRetry={() => void mutate()} /> : null}
+      {isLoading && !study ? <Loading label="Loading the study…" /> : null}
+      {study ? (
+        <>
+          <Card>
+            {study.description ? <Text variant="lead">{study.description}</Text> : <Text variant="muted">No description yet.</Text>}
+            <View style={{ flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.s1 }}>
+              <Text variant="label">Your role</Text>
+              <Badge label={roleLabel(study.myRole)} tone={study.myRole ? roleTones[study.myRole] : 'neutral'} />
+              {study.myRole ? <Text variant="caption">— {roleDescriptions[study.myRole]}</Text> : null}
+            </View>
+            <View
+              style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s4, borderTopWidth: 1, borderTopColor: colors.rule, paddingTop: space.s2 }}
+              accessibilityLabel={`${study.memberCount} members, ${study.waveCount} waves, ${study.actorCount} actors`}
+            >
+              <Figure label="Members" value={study.memberCount} />
+              <Figure label="Waves" value={study.waveCount} />
+              <Figure label="Actors" value={study.actorCount} />
+            </View>
+            {can(study.myRole, 'manageTeam') ? null : (
+              <Text variant="caption">Only the study lead can change the team or the study's details.</Text>
+            )}
+          </Card>
+          <View style={{ flexDirection: compact ? 'column' : 'row', flexWrap: 'wrap', gap: space.s2 }}>
+            {plannedSections.map((s) => (
+              <Card
+                key={s.key}
+                testID={`section-${s.key}`}
+                style={{ flexBasis: compact ? 'auto' : '47%', flexGrow: 1, borderStyle: 'dashed', backgroundColor: colors.paper }}
+                title={s.title}
+              >
+                <Text variant="muted">{s.what}</Text>
+                <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }}>
+                  <Icon name="info" size={16} color={colors.muted} />
+                  <Text variant="label" style={{ color: colors.muted }}>
+                    Not available yet.
+                  </Text>
+                </View>
+              </Card>
+            ))}
+          </View>
+        </>
+      ) : null}
+    </Screen>
+  );
+}

@@ -1,0 +1,65 @@
+/**
+ * Builds the Express app of the Wavefit API. No listening and no module-level state, so tests can
+ * make many apps (each on its own database) in one process. main.ts adds the web app and listens.
+ */
+import cookieParser from 'cookie-parser';
+import express, { type Express, type RequestHandler } from 'express';
+import { createAuth } from './auth/guard';
+import { batchesRouter } from './batches/routes';
+import { modelsRouter } from './models/routes';
+import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
+import { authRouter } from './routes/auth';
+import { dataRouter } from './routes/data';
+import type { AppDeps } from './routes/deps';
+import { devRouter } from './routes/dev';
+import { healthRouter } from './routes/health';
+import { invitationsRouter } from './routes/invitations';
+import { studiesRouter } from './routes/studies';
+import { teamRouter } from './routes/team';
+
+export type { AppDeps } from './routes/deps';
+
+/** Paths (below /api) whose bodies may be large: study data uploads. */
+const UPLOAD_PATH = /^\/studies\/[^/]+\/data\/?$/;
+
+export interface CreateAppOptions {
+  /** Where unexpected errors are reported (console.error by default). */
+  logError?: ErrorLogger;
+}
+
+export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Express {
+  const { config } = deps;
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', config.trustProxy);
+
+  const smallJson = express.json({ limit: config.jsonLimit });
+  const uploadJson = express.json({ limit: config.uploadJsonLimit });
+  const json: RequestHandler = (req, res, next) =>
+    (UPLOAD_PATH.test(req.path) ? uploadJson : smallJson)(req, res, next);
+
+  const api = express.Router();
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    res.set('X-Content-Type-Options', 'nosniff');
+    next();
+  });
+  api.use(cookieParser());
+
+  const auth = createAuth(deps);
+  const routeDeps = { ...deps, auth };
+  api.use('/health', healthRouter(routeDeps));
+  api.use('/auth', authRouter(routeDeps));
+  api.use('/invitations', invitationsRouter(routeDeps));
+  api.use('/studies', studiesRouter(routeDeps));
+  api.use('/studies', teamRouter(routeDeps));
+  api.use('/studies', dataRouter(routeDeps));
+  api.use('/studies', batchesRouter(routeDeps));
+  api.use('/studies', modelsRouter(routeDeps));
+  if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
+  api.use(apiNotFound);
+
+  app.use('/api', json, api);
+  app.use('/api', errorHandler(options.logError));
+  return app;
+}

@@ -1,0 +1,18 @@
+/**
+ * Every migration, oldest first. The schema is built only by these (never by synchronize); they run
+ * at start-up (migrationsRun) and with `npm run migrate`.
+ *
+ * To change the schema:
+ * 1. change or add the EntitySchema in ../entities (and list a new one in ../entities/index.ts);
+ * 2. print the SQL TypeORM would need: `npm run migrate -- --pending-sql`;
+ * 3. copy it into a new file NNNN-What.ts here, a class named What<timestamp> with up() and down(),
+ *    give constraints readable names, and append the class to this list;
+ * 4. tests/api/schema.test.ts fails while the entities and the migrations disagree.
+ */
+import { Accounts1733100000001 } from './0001-Accounts';
+import { StudyData1733100000002 } from './0002-StudyData';
+import { JobQueue1733100000500 } from '../../jobs/migration';
+import { Batches1733100000900 } from '../../batches/migration';
+import { Models1733100001000 } from '../../models/migration';
+
+export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000];

@@ -1,0 +1,15 @@
+/** The job queue's public surface. See README.md. */
+export { JOB_STATES, JobEntity, JobChunkEntity, type Job, type JobChunk, type JobState } from './entities';
+export { registerJobKind, getJobKind, registeredJobKinds, type JobKind, type ChunkPlan, type JobInfo, type ChunkContext, type RunChunk, type SyncDb } from './registry';
+export {
+  JobQueue,
+  createJobRow,
+  defaultWorkerCount,
+  enqueueNow,
+  jobQueueFor,
+  startJobQueue,
+  stopJobQueue,
+  type JobQueueOptions,
+  type JobStatus,
+} from './queue';
+export { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';

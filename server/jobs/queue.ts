@@ -1,0 +1,680 @@
+/**
+ * The embedded job queue: jobs in SQLite, chunks computed by a pool of worker threads, each finished
+ * chunk stored in one transaction. A crash loses at most the chunks in flight; `start()` resumes every
+ * unfinished job. See README.md for the design and for adding a job kind.
+ */
+import { EventEmitter } from 'node:events';
+import { availableParallelism } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { Worker } from 'node:worker_threads';
+import type { DataSource } from 'typeorm';
+import type { JobState } from './entities';
+import { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';
+import type { FromWorker, ToWorker } from './protocol';
+import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
+
+export interface JobQueueOptions {
+  /** Worker threads (default: WAVEFIT_WORKERS, else the number of cores). */
+  workers?: number;
+  /** How often a chunk is retried after its worker died (default 3). */
+  maxChunkRetries?: number;
+  /** Idle workers are stopped after this long without work (default 60 s). */
+  idleShutdownMs?: number;
+  /** Where queue events are reported (default: nowhere). */
+  log?: (line: string) => void;
+}
+
+/** A job row as the API shows it, with live progress while it runs. */
+export interface JobStatus {
+  id: number;
+  kind: string;
+  state: JobState;
+  /** Units done: stored chunks plus the live progress of chunks in flight. */
+  progressDone: number;
+  progressTotal: number;
+  chunksDone: number;
+  chunksTotal: number;
+  attempts: number;
+  error: string | null;
+  log: string;
+  createdAt: Date;
+  startedAt: Date | null;
+  finishedAt: Date | null;
+  /** Seconds left, from this run's pace; null until a chunk has finished or when not running. */
+  secondsLeft: number | null;
+}
+
+const TERMINAL: ReadonlySet<JobState> = new Set(['done', 'failed', 'cancelled']);
+const LOG_LIMIT = 65_536;
+
+export function defaultWorkerCount(env: Record<string, string | undefined> = process.env): number {
+  const raw = env.WAVEFIT_WORKERS;
+  if (raw) {
+    const n = Number(raw);
+    if (!Number.isInteger(n) || n < 1 || n > 64) throw new Error(`jobs: WAVEFIT_WORKERS must be a whole number 1..64, got "${raw}"`);
+    return n;
+  }
+  return Math.max(1, availableParallelism());
+}
+
+interface Task {
+  taskId: number;
+  jobId: number;
+  chunkIndex: number;
+  units: number;
+  liveUnits: number;
+}
+
+interface Slot {
+  index: number;
+  worker: Worker;
+  task: Task | null;
+  contexts: Set<number>;
+  /** Set when we stop the worker on purpose (cancel, stop, idle): its exit is not a crash. */
+  stopping: boolean;
+  exited: Promise<void>;
+}
+
+interface ActiveJob {
+  id: number;
+  kind: JobKind<unknown, unknown, unknown, unknown>;
+  info: JobInfo<unknown>;
+  plan: ChunkPlan<unknown>[];
+  done: Set<number>;
+  /** Chunks in a worker or waiting to be stored. */
+  busy: Set<number>;
+  retries: Map<number, number>;
+  context: unknown;
+  ended: boolean;
+  sessionStart: number;
+  sessionUnits: number;
+  unitsDone: number;
+  total: number;
+}
+
+function appendLog(db: SyncDb, jobId: number, line: string): void {
+  const stamped = `${new Date().toISOString()} ${line}\n`;
+  db.prepare(`UPDATE "jobs" SET "log" = substr("log" || ?, -${LOG_LIMIT}), "updatedAt" = ? WHERE "id" = ?`).run(stamped, sqlNow(), jobId);
+}
+
+/**
+ * Insert a queued job row (synchronously, so a caller can do it inside its own transaction together
+ * with its own rows). Plans the chunks first: a payload the kind refuses throws and stores nothing.
+ * Call `queue.wake()` after the caller's transaction commits.
+ */
+export function createJobRow(db: SyncDb, kind: string, payload: unknown): number {
+  const handler = getJobKind(kind);
+  if (!handler) throw new Error(`jobs: unknown job kind "${kind}"`);
+  const plan = handler.planChunks(payload);
+  if (plan.length === 0) throw new Error(`jobs: a ${kind} job must have at least one chunk`);
+  const units = plan.reduce((sum, p) => sum + p.units, 0);
+  const now = sqlNow();
+  const result = db
+    .prepare(
+      `INSERT INTO "jobs" ("kind", "payload", "state", "progressDone", "progressTotal", "chunksDone", "chunksTotal", "log", "attempts", "createdAt", "updatedAt")
+       VALUES (?, ?, 'queued', 0, ?, 0, ?, ?, 0, ?, ?)`,
+    )
+    .run(kind, JSON.stringify(payload), units, plan.length, `${new Date().toISOString()} queued: ${plan.length} chunks, ${units} units\n`, now, now);
+  return Number(result.lastInsertRowid);
+}
+
+export class JobQueue extends EventEmitter {
+  readonly dataSource: DataSource;
+  readonly workerCount: number;
+  private readonly maxChunkRetries: number;
+  private readonly idleShutdownMs: number;
+  private readonly report: (line: string) => void;
+  private readonly slots: (Slot | null)[];
+  private readonly active = new Map<number, ActiveJob>();
+  private readonly waiters = new Map<number, ((state: JobState) => void)[]>();
+  private started = false;
+  private stopped = false;
+  private dirty = true;
+  private pumping = false;
+  private pumpAgain = false;
+  private nextTaskId = 1;
+  private idleTimer: NodeJS.Timeout | null = null;
+  /** Jobs whose context failed to load or whose kind is unknown, so they are not retried in a loop. */
+  private readonly skipped = new Set<number>();
+
+  constructor(dataSource: DataSource, options: JobQueueOptions = {}) {
+    super();
+    this.dataSource = dataSource;
+    this.workerCount = options.workers ?? defaultWorkerCount();
+    if (!Number.isInteger(this.workerCount) || this.workerCount < 1) throw new Error(`jobs: workers must be a whole number >= 1, got ${this.workerCount}`);
+    this.maxChunkRetries = options.maxChunkRetries ?? 3;
+    this.idleShutdownMs = options.idleShutdownMs ?? 60_000;
+    this.report = options.log ?? (() => undefined);
+    this.slots = new Array<Slot | null>(this.workerCount).fill(null);
+  }
+
+  private get db(): SyncDb {
+    return syncDb(this.dataSource);
+  }
+
+  get isRunning(): boolean {
+    return this.started && !this.stopped;
+  }
+
+  /** Start working: resumes every queued or running job in the database. Calling it again does nothing. */
+  async start(): Promise<void> {
+    if (this.started) return;
+    this.started = true;
+    this.stopped = false;
+    this.dirty = true;
+    await this.pump();
+  }
+
+  /**
+   * Stop working: terminates the workers. Unfinished jobs stay queued or running in the database and
+   * resume at the next start (chunks in flight are computed again).
+   */
+  async stop(): Promise<void> {
+    this.stopped = true;
+    if (this.idleTimer) clearTimeout(this.idleTimer);
+    this.idleTimer = null;
+    await Promise.all(this.slots.map((slot) => (slot ? this.stopSlot(slot) : undefined)));
+    this.active.clear();
+  }
+
+  /** Tell the queue that new jobs may be waiting (after createJobRow in a caller's transaction). */
+  wake(): void {
+    this.dirty = true;
+    if (this.started && !this.stopped) void this.pump();
+  }
+
+  /** Queue a job: plans its chunks (throws on a refused payload, storing nothing) and returns its id. */
+  async enqueue(kind: string, payload: unknown): Promise<number> {
+    const id = await inSyncTransaction(this.db, (db) => createJobRow(db, kind, payload));
+    this.wake();
+    return id;
+  }
+
+  /**
+   * Cancel a queued or running job: its state becomes cancelled at once and the workers busy with its
+   * chunks are terminated. Returns false when the job had already ended (or does not exist), and the
+   * milliseconds until its last worker stopped.
+   */
+  async cancel(jobId: number, reason = 'cancelled by a user'): Promise<{ cancelled: boolean; ms: number }> {
+    const t0 = performance.now();
+    const cancelled = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, jobId, 'cancelled', reason));
+    if (cancelled) await this.abandon(jobId, 'cancelled');
+    return { cancelled, ms: performance.now() - t0 };
+  }
+
+  /** The job with live progress and an estimate of the time left; null when there is no such job. */
+  status(jobId: number): JobStatus | null {
+    const row = this.db.prepare(`SELECT * FROM "jobs" WHERE "id" = ?`).get(jobId) as Record<string, unknown> | undefined;
+    if (!row) return null;
+    return this.toStatus(row);
+  }
+
+  /** Several jobs by id (missing ids are left out). */
+  statuses(jobIds: number[]): Map<number, JobStatus> {
+    const out = new Map<number, JobStatus>();
+    if (jobIds.length === 0) return out;
+    const rows = this.db
+      .prepare(`SELECT * FROM "jobs" WHERE "id" IN (${jobIds.map(() => '?').join(',')})`)
+      .all(...jobIds) as Record<string, unknown>[];
+    for (const row of rows) out.set(Number(row.id), this.toStatus(row));
+    return out;
+  }
+
+  private toStatus(row: Record<string, unknown>): JobStatus {
+    const id = Number(row.id);
+    const state = row.state as JobState;
+    const job = this.active.get(id);
+    let progressDone = Number(row.progressDone);
+    let secondsLeft: number | null = null;
+    if (job && !job.ended && state === 'running') {
+      let live = 0;
+      for (const slot of this.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
+      progressDone = Math.min(Number(row.progressTotal), progressDone + live);
+      const elapsed = (performance.now() - job.sessionStart) / 1000;
+      const pace = job.sessionUnits + live;
+      if (pace > 0 && elapsed > 0) secondsLeft = ((Number(row.progressTotal) - progressDone) * elapsed) / pace;
+    }
+    return {
+      id,
+      kind: String(row.kind),
+      state,
+      progressDone,
+      progressTotal: Number(row.progressTotal),
+      chunksDone: Number(row.chunksDone),
+      chunksTotal: Number(row.chunksTotal),
+      attempts: Number(row.attempts),
+      error: (row.error as string | null) ?? null,
+      log: String(row.log ?? ''),
+      createdAt: parseSqlDate(row.createdAt as string)!,
+      startedAt: parseSqlDate(row.startedAt as string | null),
+      finishedAt: parseSqlDate(row.finishedAt as string | null),
+      secondsLeft,
+    };
+  }
+
+  /** Resolves with the final state once the job is done, failed or cancelled. */
+  whenSettled(jobId: number): Promise<JobState> {
+    const row = this.db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(jobId) as { state: JobState } | undefined;
+    if (!row) return Promise.reject(new Error(`jobs: there is no job ${jobId}`));
+    if (TERMINAL.has(row.state)) return Promise.resolve(row.state);
+    return new Promise((resolve) => {
+      const list = this.waiters.get(jobId) ?? [];
+      list.push(resolve);
+      this.waiters.set(jobId, list);
+    });
+  }
+
+  /**
+   * For durability tests: terminate one busy worker as if it had crashed (the queue is not told).
+   * Returns the chunk it was working on, or null when no worker was busy.
+   */
+  crashWorkerForTest(): { jobId: number; chunkIndex: number } | null {
+    const slot = this.slots.find((s) => s?.task);
+    if (!slot || !slot.task) return null;
+    const { jobId, chunkIndex } = slot.task;
+    void slot.worker.terminate();
+    return { jobId, chunkIndex };
+  }
+
+  /** Number of live worker threads (for tests and diagnostics). */
+  get liveWorkers(): number {
+    return this.slots.filter((s) => s !== null).length;
+  }
+
+  // ---------------------------------------------------------------- scheduling
+
+  private async pump(): Promise<void> {
+    if (this.pumping) {
+      this.pumpAgain = true;
+      return;
+    }
+    this.pumping = true;
+    try {
+      do {
+        this.pumpAgain = false;
+        if (this.stopped || !this.started) return;
+        if (this.dirty) {
+          this.dirty = false;
+          await this.loadActiveJobs();
+        }
+        this.dispatch();
+      } while (this.pumpAgain);
+    } catch (error) {
+      this.report(`jobs: scheduling failed: ${error instanceof Error ? error.message : String(error)}`);
+    } finally {
+      this.pumping = false;
+      this.scheduleIdleShutdown();
+    }
+  }
+
+  private async loadActiveJobs(): Promise<void> {
+    const rows = this.db
+      .prepare(`SELECT "id", "kind", "payload", "state", "attempts", "progressDone", "progressTotal" FROM "jobs" WHERE "state" IN ('queued', 'running') ORDER BY "id"`)
+      .all() as { id: number; kind: string; payload: string; state: JobState; attempts: number; progressDone: number; progressTotal: number }[];
+    for (const row of rows) {
+      if (this.active.has(row.id) || this.skipped.has(row.id)) continue;
+      const kind = getJobKind(row.kind);
+      if (!kind) {
+        this.skipped.add(row.id);
+        this.report(`jobs: job ${row.id} has kind "${row.kind}", which is not registered in this process; it stays ${row.state}`);
+        continue;
+      }
+      const info: JobInfo<unknown> = { id: row.id, kind: row.kind, payload: JSON.parse(row.payload), attempts: row.attempts + 1 };
+      let plan: ChunkPlan<unknown>[];
+      let context: unknown;
+      try {
+        plan = kind.planChunks(info.payload);
+        context = await kind.loadContext(info, this.dataSource);
+      } catch (error) {
+        const message = error instanceof Error ? error.message : String(error);
+        await inSyncTransaction(this.db, (db) => this.endJobInDb(db, row.id, 'failed', `could not start: ${message}`));
+        this.settle(row.id, 'failed');
+        continue;
+      }
+      const done = new Set(
+        (this.db.prepare(`SELECT "chunkIndex" FROM "job_chunks" WHERE "jobId" = ?`).all(row.id) as { chunkIndex: number }[]).map((r) => r.chunkIndex),
+      );
+      const resumed = row.state === 'running';
+      const stillOpen = await inSyncTransaction(this.db, (db) => {
+        const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(row.id) as { state: JobState } | undefined;
+        if (!current || TERMINAL.has(current.state)) return false;
+        const now = sqlNow();
+        db.prepare(`UPDATE "jobs" SET "state" = 'running', "attempts" = "attempts" + 1, "startedAt" = coalesce("startedAt", ?), "updatedAt" = ? WHERE "id" = ?`).run(now, now, row.id);
+        appendLog(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`);
+        return true;
+      });
+      if (!stillOpen) continue;
+      const unitsDone = plan.reduce((sum, p, i) => sum + (done.has(i) ? p.units : 0), 0);
+      const job: ActiveJob = {
+        id: row.id,
+        kind,
+        info,
+        plan,
+        done,
+        busy: new Set(),
+        retries: new Map(),
+        context,
+        ended: false,
+        sessionStart: performance.now(),
+        sessionUnits: 0,
+        unitsDone,
+        total: plan.reduce((sum, p) => sum + p.units, 0),
+      };
+      this.active.set(row.id, job);
+      if (done.size === plan.length) {
+        // Every chunk was stored before a restart, but the job was not marked done: finish it now.
+        await this.finishIfComplete(job);
+      }
+    }
+  }
+
+  private dispatch(): void {
+    if (this.stopped) return;
+    const jobs = [...this.active.values()].filter((j) => !j.ended).sort((a, b) => a.id - b.id);
+    for (const job of jobs) {
+      for (let c = 0; c < job.plan.length; c++) {
+        if (job.done.has(c) || job.busy.has(c)) continue;
+        const slot = this.idleSlot();
+        if (!slot) return;
+        this.runOn(slot, job, c);
+      }
+    }
+  }
+
+  private idleSlot(): Slot | null {
+    for (let i = 0; i < this.slots.length; i++) {
+      const slot = this.slots[i];
+      if (slot && !slot.task && !slot.stopping) return slot;
+    }
+    for (let i = 0; i < this.slots.length; i++) {
+      if (this.slots[i] === null) return this.spawn(i);
+    }
+    return null;
+  }
+
+  private spawn(index: number): Slot {
+    const worker = new Worker(join(__dirname, 'boot.mjs'), {
+      execArgv: [],
+      workerData: { entry: pathToFileURL(join(__dirname, 'worker.ts')).href },
+    });
+    let onExit: () => void = () => undefined;
+    const exited = new Promise<void>((resolve) => {
+      onExit = resolve;
+    });
+    const slot: Slot = { index, worker, task: null, contexts: new Set(), stopping: false, exited };
+    this.slots[index] = slot;
+    worker.on('message', (message: FromWorker) => this.onMessage(slot, message));
+    worker.on('error', (error) => {
+      if (!slot.stopping) this.report(`jobs: worker ${index} failed: ${error.message}`);
+    });
+    worker.on('exit', (code) => {
+      onExit();
+      void this.onExit(slot, code);
+    });
+    return slot;
+  }
+
+  private post(slot: Slot, message: ToWorker): void {
+    slot.worker.postMessage(message);
+  }
+
+  private runOn(slot: Slot, job: ActiveJob, chunkIndex: number): void {
+    if (!slot.contexts.has(job.id)) {
+      this.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
+      slot.contexts.add(job.id);
+    }
+    const task: Task = { taskId: this.nextTaskId++, jobId: job.id, chunkIndex, units: job.plan[chunkIndex].units, liveUnits: 0 };
+    slot.task = task;
+    slot.worker.ref();
+    job.busy.add(chunkIndex);
+    if (this.idleTimer) {
+      clearTimeout(this.idleTimer);
+      this.idleTimer = null;
+    }
+    this.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
+  }
+
+  private releaseSlot(slot: Slot): void {
+    slot.task = null;
+    slot.worker.unref();
+  }
+
+  private onMessage(slot: Slot, message: FromWorker): void {
+    if (message.type === 'ready') return;
+    const task = slot.task;
+    if (!task || task.taskId !== message.taskId) return; // a late message from an abandoned task
+    const job = this.active.get(task.jobId);
+    if (message.type === 'progress') {
+      task.liveUnits = message.unitsDone;
+      return;
+    }
+    if (message.type === 'log') {
+      void inSyncTransaction(this.db, (db) => appendLog(db, task.jobId, `chunk ${task.chunkIndex}: ${message.line}`)).catch(() => undefined);
+      return;
+    }
+    this.releaseSlot(slot);
+    if (!job || job.ended) {
+      void this.pump();
+      return;
+    }
+    if (message.type === 'error') {
+      job.busy.delete(task.chunkIndex);
+      void this.failJob(job, `chunk ${task.chunkIndex} failed: ${message.message}`);
+      return;
+    }
+    void this.storeResult(job, task, message.result, message.workMs);
+    void this.pump();
+  }
+
+  private async storeResult(job: ActiveJob, task: Task, result: unknown, workMs: number): Promise<void> {
+    const chunkIndex = task.chunkIndex;
+    const chunk = job.plan[chunkIndex];
+    let stored = false;
+    try {
+      stored = await inSyncTransaction(this.db, (db) => {
+        const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(job.id) as { state: JobState } | undefined;
+        if (!current || current.state !== 'running') return false;
+        const exists = db.prepare(`SELECT 1 FROM "job_chunks" WHERE "jobId" = ? AND "chunkIndex" = ?`).get(job.id, chunkIndex);
+        if (exists) return false;
+        job.kind.storeChunk(db, job.info, chunkIndex, chunk.chunk, result);
+        db.prepare(`INSERT INTO "job_chunks" ("jobId", "chunkIndex", "units", "workMs", "finishedAt") VALUES (?, ?, ?, ?, ?)`).run(
+          job.id,
+          chunkIndex,
+          chunk.units,
+          workMs,
+          sqlNow(),
+        );
+        db.prepare(
+          `UPDATE "jobs" SET "progressDone" = "progressDone" + ?, "chunksDone" = "chunksDone" + 1, "updatedAt" = ? WHERE "id" = ?`,
+        ).run(chunk.units, sqlNow(), job.id);
+        // Counted inside the transaction, so two chunks stored back to back cannot both miss the end.
+        job.done.add(chunkIndex);
+        try {
+          if (job.done.size === job.plan.length) this.completeInDb(db, job);
+        } catch (error) {
+          job.done.delete(chunkIndex);
+          throw error;
+        }
+        return true;
+      });
+    } catch (error) {
+      job.done.delete(chunkIndex);
+      job.busy.delete(chunkIndex);
+      await this.failJob(job, `storing chunk ${chunkIndex} failed: ${error instanceof Error ? error.message : String(error)}`);
+      return;
+    }
+    job.busy.delete(chunkIndex);
+    if (stored) {
+      job.sessionUnits += chunk.units;
+      job.unitsDone += chunk.units;
+      this.emit('progress', { jobId: job.id, unitsDone: job.unitsDone, total: job.total });
+      if (job.done.size === job.plan.length) this.afterEnd(job, 'done');
+    }
+    void this.pump();
+  }
+
+  private completeInDb(db: SyncDb, job: ActiveJob): void {
+    job.kind.finish?.(db, job.info);
+    const now = sqlNow();
+    db.prepare(`UPDATE "jobs" SET "state" = 'done', "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(now, now, job.id);
+    appendLog(db, job.id, 'done');
+  }
+
+  private async finishIfComplete(job: ActiveJob): Promise<void> {
+    const finished = await inSyncTransaction(this.db, (db) => {
+      const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(job.id) as { state: JobState } | undefined;
+      if (!current || current.state !== 'running') return false;
+      this.completeInDb(db, job);
+      return true;
+    });
+    if (finished) this.afterEnd(job, 'done');
+  }
+
+  /** Marks a queued/running job as failed or cancelled; returns false if it had already ended. */
+  private endJobInDb(db: SyncDb, jobId: number, state: 'failed' | 'cancelled', reason: string): boolean {
+    const row = db.prepare(`SELECT "state", "kind", "payload", "attempts" FROM "jobs" WHERE "id" = ?`).get(jobId) as
+      | { state: JobState; kind: string; payload: string; attempts: number }
+      | undefined;
+    if (!row || TERMINAL.has(row.state)) return false;
+    const now = sqlNow();
+    db.prepare(`UPDATE "jobs" SET "state" = ?, "error" = ?, "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(
+      state,
+      state === 'failed' ? reason : null,
+      now,
+      now,
+      jobId,
+    );
+    appendLog(db, jobId, `${state}: ${reason}`);
+    const kind = getJobKind(row.kind);
+    kind?.onEnd?.(db, { id: jobId, kind: row.kind, payload: JSON.parse(row.payload), attempts: row.attempts }, state, reason);
+    return true;
+  }
+
+  private async failJob(job: ActiveJob, reason: string): Promise<void> {
+    if (job.ended) return;
+    const failed = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, job.id, 'failed', reason));
+    this.report(`jobs: job ${job.id} failed: ${reason}`);
+    if (failed) await this.abandon(job.id, 'failed');
+    else void this.pump();
+  }
+
+  /** Stops the in-flight chunks of an ended job and forgets it. */
+  private async abandon(jobId: number, state: JobState): Promise<void> {
+    const job = this.active.get(jobId);
+    if (job) this.afterEnd(job, state);
+    else this.settle(jobId, state);
+    const stops: Promise<void>[] = [];
+    for (const slot of this.slots) {
+      if (!slot) continue;
+      if (slot.task?.jobId === jobId) stops.push(this.stopSlot(slot));
+      else if (slot.contexts.has(jobId)) {
+        this.post(slot, { type: 'forget', jobId });
+        slot.contexts.delete(jobId);
+      }
+    }
+    await Promise.all(stops);
+    void this.pump();
+  }
+
+  private afterEnd(job: ActiveJob, state: JobState): void {
+    job.ended = true;
+    this.active.delete(job.id);
+    for (const slot of this.slots) {
+      if (slot && slot.contexts.has(job.id) && !slot.stopping) {
+        this.post(slot, { type: 'forget', jobId: job.id });
+        slot.contexts.delete(job.id);
+      }
+    }
+    this.settle(job.id, state);
+  }
+
+  private settle(jobId: number, state: JobState): void {
+    this.emit('ended', { jobId, state });
+    const list = this.waiters.get(jobId);
+    this.waiters.delete(jobId);
+    for (const resolve of list ?? []) resolve(state);
+  }
+
+  private async stopSlot(slot: Slot): Promise<void> {
+    slot.stopping = true;
+    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
+    await slot.worker.terminate();
+    await slot.exited;
+  }
+
+  private async onExit(slot: Slot, code: number): Promise<void> {
+    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
+    const task = slot.task;
+    slot.task = null;
+    if (slot.stopping || this.stopped) return;
+    this.report(`jobs: worker ${slot.index} stopped unexpectedly (exit code ${code})`);
+    if (task) {
+      const job = this.active.get(task.jobId);
+      if (job && !job.ended) {
+        job.busy.delete(task.chunkIndex);
+        const tries = (job.retries.get(task.chunkIndex) ?? 0) + 1;
+        job.retries.set(task.chunkIndex, tries);
+        if (tries > this.maxChunkRetries) {
+          await this.failJob(job, `chunk ${task.chunkIndex} lost its worker ${tries} times`);
+          return;
+        }
+        await inSyncTransaction(this.db, (db) =>
+          appendLog(db, job.id, `worker stopped unexpectedly during chunk ${task.chunkIndex}; computing it again (try ${tries + 1})`),
+        ).catch(() => undefined);
+      }
+    }
+    void this.pump();
+  }
+
+  private scheduleIdleShutdown(): void {
+    if (this.stopped || this.idleTimer) return;
+    const busy = this.slots.some((s) => s?.task) || this.active.size > 0;
+    const live = this.slots.some((s) => s !== null);
+    if (busy || !live) return;
+    this.idleTimer = setTimeout(() => {
+      this.idleTimer = null;
+      const stillIdle = !this.slots.some((s) => s?.task) && this.active.size === 0;
+      if (stillIdle) for (const slot of this.slots) if (slot) void this.stopSlot(slot);
+    }, this.idleShutdownMs);
+    this.idleTimer.unref();
+  }
+}
+
+// ---------------------------------------------------------------- one queue per data source
+
+const queues = new WeakMap<DataSource, JobQueue>();
+
+/**
+ * The queue of a data source (created on first use, not started). Routes call this to enqueue; the
+ * server's main.ts calls `startJobQueue` at boot so unfinished jobs resume.
+ */
+export function jobQueueFor(dataSource: DataSource, options?: JobQueueOptions): JobQueue {
+  let queue = queues.get(dataSource);
+  if (!queue) {
+    queue = new JobQueue(dataSource, options);
+    queues.set(dataSource, queue);
+  }
+  return queue;
+}
+
+/** Creates (if needed) and starts the queue of a data source; resumes unfinished jobs. */
+export async function startJobQueue(dataSource: DataSource, options?: JobQueueOptions): Promise<JobQueue> {
+  const queue = jobQueueFor(dataSource, options);
+  await queue.start();
+  return queue;
+}
+
+/** Stops the queue of a data source (workers terminated; unfinished jobs resume at the next start). */
+export async function stopJobQueue(dataSource: DataSource): Promise<void> {
+  const queue = queues.get(dataSource);
+  if (queue) {
+    await queue.stop();
+    queues.delete(dataSource);
+  }
+}
+
+/** Synchronous form of createJobRow in its own transaction (for scripts). */
+export function enqueueNow(dataSource: DataSource, kind: string, payload: unknown): number {
+  return inSyncTransactionNow(syncDb(dataSource), (db) => createJobRow(db, kind, payload));
+}

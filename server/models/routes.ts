@@ -1,0 +1,171 @@
+/**
+ * /api/studies/:studyId/models: model specifications (write: lead, statistician; read: members) and
+ * their fits (start and cancel: lead, statistician; read: members). The contract is in shared/models.ts.
+ */
+import { Router, type Request } from 'express';
+import type { ApiErrorCode } from '../../shared/api';
+import {
+  modelSpecBodySchema,
+  modelUpdateBodySchema,
+  startFitBodySchema,
+  type ParsedModelSpecBody,
+  type ParsedStartFitBody,
+} from '../../shared/models';
+import { currentStudy, currentUser } from '../auth/context';
+import { setFitModelResolver } from '../batches/service';
+import { ApiError, idParam, notFound, validate } from '../errors';
+import type { RouteDeps } from '../routes/deps';
+import './jobKind';
+import {
+  ModelInputError,
+  batchModelOfFit,
+  cancelFit,
+  checkModel,
+  createModel,
+  deleteModel,
+  fitDetail,
+  getFitRow,
+  getModelRow,
+  listFits,
+  listModels,
+  modelDetail,
+  startFit,
+  updateModel,
+  type ModelUpdate,
+} from './service';
+
+// Batches may simulate a stored fit: tell them how to read one.
+setFitModelResolver(batchModelOfFit);
+
+function toApiError(error: unknown): unknown {
+  if (error instanceof ModelInputError) {
+    const code = (error.code === 'conflict' ? 'fit_not_running' : error.code) as ApiErrorCode;
+    return new ApiError(error.status, code, error.message, error.details);
+  }
+  return error;
+}
+
+/** Runs a handler and turns ModelInputError into the API's error shape. */
+function guarded(handler: (req: Request, res: import('express').Response) => Promise<void> | void) {
+  return async (req: Request, res: import('express').Response) => {
+    try {
+      await handler(req, res);
+    } catch (error) {
+      throw toApiError(error);
+    }
+  };
+}
+
+export function modelsRouter(deps: RouteDeps): Router {
+  const { dataSource, auth } = deps;
+  const router = Router();
+
+  const loadModel = (req: Request) => {
+    const { study } = currentStudy(req);
+    const modelId = idParam(req, 'modelId', 'Model');
+    const row = getModelRow(dataSource, study.id, modelId);
+    if (!row) throw notFound('Model not found.');
+    return row;
+  };
+  const loadFit = (req: Request) => {
+    const model = loadModel(req);
+    const fitId = idParam(req, 'fitId', 'Fit');
+    const row = getFitRow(dataSource, model.studyId, model.id, fitId);
+    if (!row) throw notFound('Fit not found.');
+    return { model, row };
+  };
+
+  router.get('/:studyId/models', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+    const { study } = currentStudy(req);
+    res.json({ models: listModels(dataSource, study.id) });
+  });
+
+  router.post(
+    '/:studyId/models/check',
+    auth.requireUser,
+    auth.requireStudyRole('read'),
+    validate(modelSpecBodySchema),
+    guarded(async (req, res) => {
+      const { study } = currentStudy(req);
+      res.json({ notes: await checkModel(dataSource, study.id, req.body as ParsedModelSpecBody) });
+    }),
+  );
+
+  router.post(
+    '/:studyId/models',
+    auth.requireUser,
+    auth.requireStudyRole('editModels'),
+    validate(modelSpecBodySchema),
+    guarded(async (req, res) => {
+      const { study } = currentStudy(req);
+      const id = await createModel(dataSource, study.id, currentUser(req).id, req.body as ParsedModelSpecBody);
+      res.status(201).json({ model: await modelDetail(dataSource, getModelRow(dataSource, study.id, id)!) });
+    }),
+  );
+
+  router.get(
+    '/:studyId/models/:modelId',
+    auth.requireUser,
+    auth.requireStudyRole('read'),
+    guarded(async (req, res) => {
+      res.json({ model: await modelDetail(dataSource, loadModel(req)) });
+    }),
+  );
+
+  router.patch(
+    '/:studyId/models/:modelId',
+    auth.requireUser,
+    auth.requireStudyRole('editModels'),
+    validate(modelUpdateBodySchema),
+    guarded(async (req, res) => {
+      const row = loadModel(req);
+      await updateModel(dataSource, row, req.body as ModelUpdate);
+      res.json({ model: await modelDetail(dataSource, getModelRow(dataSource, row.studyId, row.id)!) });
+    }),
+  );
+
+  router.delete(
+    '/:studyId/models/:modelId',
+    auth.requireUser,
+    auth.requireStudyRole('editModels'),
+    guarded(async (req, res) => {
+      await deleteModel(dataSource, loadModel(req));
+      res.status(204).end();
+    }),
+  );
+
+  router.get('/:studyId/models/:modelId/fits', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+    const model = loadModel(req);
+    res.json({ fits: listFits(dataSource, model.studyId, model.id) });
+  });
+
+  router.post(
+    '/:studyId/models/:modelId/fits',
+    auth.requireUser,
+    auth.requireStudyRole('runBatches'),
+    validate(startFitBodySchema),
+    guarded(async (req, res) => {
+      const model = loadModel(req);
+      const fitId = await startFit(dataSource, model, currentUser(req).id, req.body as ParsedStartFitBody);
+      res.status(201).json({ fit: fitDetail(dataSource, getFitRow(dataSource, model.studyId, model.id, fitId)!) });
+    }),
+  );
+
+  router.get('/:studyId/models/:modelId/fits/:fitId', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+    const { row } = loadFit(req);
+    res.json({ fit: fitDetail(dataSource, row) });
+  });
+
+  router.post(
+    '/:studyId/models/:modelId/fits/:fitId/cancel',
+    auth.requireUser,
+    auth.requireStudyRole('runBatches'),
+    guarded(async (req, res) => {
+      const { model, row } = loadFit(req);
+      await cancelFit(dataSource, row);
+      res.json({ fit: fitDetail(dataSource, getFitRow(dataSource, model.studyId, model.id, row.id)!) });
+    }),
+  );
+
+  return router;
+}

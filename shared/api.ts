@@ -1,0 +1,203 @@
+/**
+ * The API contract: zod schemas for request bodies and TypeScript types of responses.
+ * The server validates every body with these schemas; the client's typed API client
+ * (features/api/client.ts) uses the same types. Errors always have the shape ApiErrorBody.
+ *
+ * Endpoints (all under /api; auth by httpOnly cookie "wavefit_token" or "Authorization: Bearer <jwt>"):
+ *   POST   /auth/login                         LoginBody            -> SessionResponse (+ cookie)
+ *   POST   /auth/logout                                             -> 204 (cookie cleared)
+ *   GET    /auth/me                                                 -> SessionResponse
+ *   POST   /auth/password                      ChangePasswordBody   -> 204
+ *   GET    /invitations/:token                                      -> InvitationPreview
+ *   POST   /invitations/:token/accept          AcceptInvitationBody -> SessionResponse (+ cookie)
+ *   GET    /studies                                                 -> { studies: StudySummary[] }
+ *   POST   /studies                            CreateStudyBody      -> { study: StudySummary }   (creator becomes lead)
+ *   GET    /studies/:studyId                                        -> { study: StudySummary }   (members, admin)
+ *   PATCH  /studies/:studyId                   UpdateStudyBody      -> { study: StudySummary }   (lead)
+ *   GET    /studies/:studyId/members                                -> TeamResponse              (members)
+ *   POST   /studies/:studyId/invitations       InviteBody           -> { invitation: PendingInvitation } (lead; e-mail sent)
+ *   DELETE /studies/:studyId/invitations/:id                        -> 204 (lead)
+ *   PATCH  /studies/:studyId/members/:userId   ChangeRoleBody       -> { member: Member }        (lead; never leaves a study without a lead)
+ *   DELETE /studies/:studyId/members/:userId                        -> 204 (lead; never removes the last lead)
+ *   GET    /dev/outbox                                              -> { messages: OutboxMessage[] } (not in production)
+ *   GET    /health                                                  -> { ok: true, version }
+ * Study data (contract in shared/data.ts):
+ *   POST   /studies/:studyId/data              DataUploadBody       -> DataUploadResponse (lead, statistician; replaces the data)
+ *   GET    /studies/:studyId/data                                   -> StudyDataResponse  (members)
+ *   GET    /studies/:studyId/data/waves/:index                      -> WaveTiesResponse   (members; index from 1)
+ */
+import { z } from 'zod';
+
+// ---------- roles ----------
+export const STUDY_ROLES = ['lead', 'statistician', 'reviewer'] as const;
+export type StudyRole = (typeof STUDY_ROLES)[number];
+export const studyRoleSchema = z.enum(STUDY_ROLES);
+
+/** What each study role may do; the server's role guard and the client's buttons both read this. */
+export const ROLE_ABILITIES = {
+  read: ['lead', 'statistician', 'reviewer'],
+  editData: ['lead', 'statistician'],
+  editModels: ['lead', 'statistician'],
+  runBatches: ['lead', 'statistician'],
+  review: ['lead', 'statistician', 'reviewer'],
+  manageTeam: ['lead'],
+  signReport: ['lead'],
+} as const satisfies Record<string, readonly StudyRole[]>;
+export type Ability = keyof typeof ROLE_ABILITIES;
+
+export function can(role: StudyRole | null | undefined, ability: Ability): boolean {
+  return role != null && (ROLE_ABILITIES[ability] as readonly StudyRole[]).includes(role);
+}
+
+// ---------- errors ----------
+export interface ApiErrorBody {
+  error: { code: string; message: string; details?: unknown };
+}
+
+/**
+ * The error codes the server sends (ApiErrorBody.error.code), with their HTTP status:
+ * bad_request 400, validation_failed 400 (details: FieldErrorDetails), malformed_json 400,
+ * data_invalid 400 (details: DataProblemDetails, shared/data.ts), unauthenticated 401,
+ * token_expired 401, token_invalid 401, invalid_credentials 401, forbidden 403, not_found 404,
+ * already_member 409, last_lead 409, data_in_use 409, invitation_expired 410, invitation_used 410,
+ * payload_too_large 413, rate_limited 429, internal 500.
+ */
+export type ApiErrorCode =
+  | 'bad_request'
+  | 'validation_failed'
+  | 'malformed_json'
+  | 'data_invalid'
+  | 'unauthenticated'
+  | 'token_expired'
+  | 'token_invalid'
+  | 'invalid_credentials'
+  | 'forbidden'
+  | 'not_found'
+  | 'already_member'
+  | 'last_lead'
+  | 'data_in_use'
+  | 'invitation_expired'
+  | 'invitation_used'
+  | 'payload_too_large'
+  | 'rate_limited'
+  | 'internal';
+
+/** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */
+export interface FieldErrorDetails {
+  fields: Record<string, string[]>;
+}
+
+// ---------- auth ----------
+export const emailSchema = z.string().trim().toLowerCase().email('Enter a valid e-mail address.');
+export const passwordSchema = z
+  .string()
+  .min(10, 'A password needs at least 10 characters.')
+  .max(200, 'A password may have at most 200 characters.');
+
+export const loginBodySchema = z.object({
+  email: emailSchema,
+  password: z.string().min(1, 'Enter your password.'),
+});
+export type LoginBody = z.infer<typeof loginBodySchema>;
+
+export const changePasswordBodySchema = z.object({
+  currentPassword: z.string().min(1, 'Enter your current password.'),
+  newPassword: passwordSchema,
+});
+export type ChangePasswordBody = z.infer<typeof changePasswordBodySchema>;
+
+export const acceptInvitationBodySchema = z.object({
+  name: z.string().trim().min(1, 'Enter your name.').max(120),
+  password: passwordSchema,
+});
+export type AcceptInvitationBody = z.infer<typeof acceptInvitationBodySchema>;
+
+export interface UserInfo {
+  id: number;
+  email: string;
+  name: string;
+  isAdmin: boolean;
+}
+export interface SessionResponse {
+  user: UserInfo;
+  /** The same JWT as in the cookie, for scripts that use the bearer header. */
+  token: string;
+  expiresAt: string;
+}
+
+export interface InvitationPreview {
+  email: string;
+  role: StudyRole;
+  studyName: string;
+  invitedBy: string;
+  expiresAt: string;
+  /** True when an account with this e-mail exists already (then only the name field is ignored). */
+  accountExists: boolean;
+}
+
+// ---------- studies ----------
+export const createStudyBodySchema = z.object({
+  name: z.string().trim().min(3, 'A study name needs at least 3 characters.').max(120, 'A study name may have at most 120 characters.'),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').default(''),
+});
+export type CreateStudyBody = z.input<typeof createStudyBodySchema>;
+
+/** Only the fields sent change (no defaults here, so a rename keeps the description). */
+export const updateStudyBodySchema = z.object({
+  name: createStudyBodySchema.shape.name.optional(),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').optional(),
+});
+export type UpdateStudyBody = z.input<typeof updateStudyBodySchema>;
+
+export interface StudySummary {
+  id: number;
+  name: string;
+  description: string;
+  /** The signed-in user's role in this study; null for a site admin who is not a member. */
+  myRole: StudyRole | null;
+  memberCount: number;
+  waveCount: number;
+  actorCount: number;
+  createdAt: string;
+  updatedAt: string;
+}
+
+// ---------- team ----------
+export const inviteBodySchema = z.object({
+  email: emailSchema,
+  role: studyRoleSchema,
+});
+export type InviteBody = z.infer<typeof inviteBodySchema>;
+
+export const changeRoleBodySchema = z.object({ role: studyRoleSchema });
+export type ChangeRoleBody = z.infer<typeof changeRoleBodySchema>;
+
+export interface Member {
+  userId: number;
+  name: string;
+  email: string;
+  role: StudyRole;
+  joinedAt: string;
+}
+export interface PendingInvitation {
+  id: number;
+  email: string;
+  role: StudyRole;
+  invitedBy: string;
+  createdAt: string;
+  expiresAt: string;
+}
+export interface TeamResponse {
+  members: Member[];
+  invitations: PendingInvitation[];
+}
+
+// ---------- dev ----------
+export interface OutboxMessage {
+  id: number;
+  to: string;
+  subject: string;
+  text: string;
+  html?: string;
+  createdAt: string;
+}

@@ -1,0 +1,172 @@
+/**
+ * Study data: the upload contract (zod) and the response types of the study data endpoints.
+ *
+ * Endpoints (under /api, see shared/api.ts for auth and errors):
+ *   POST /studies/:studyId/data                DataUploadBody -> DataUploadResponse (lead, statistician; replaces the study's data)
+ *   GET  /studies/:studyId/data                               -> StudyDataResponse  (members)
+ *   GET  /studies/:studyId/data/waves/:index                  -> WaveTiesResponse   (members; index counts from 1)
+ *
+ * File conventions (the client reads each file as text and sends it in the JSON body):
+ * - Any file: UTF-8 text, at most MAX_FILE_BYTES (2 MB); a leading byte-order mark is ignored;
+ *   blank lines are skipped; fields are separated by commas (or by semicolons or tabs when the
+ *   first line has no comma); a field may be quoted with "..." ("" inside for a quote); spaces
+ *   around fields are trimmed. Actor labels are case-sensitive, at most 60 characters.
+ * - The missing marker (default "NA", case-sensitive) stands for an unobserved value.
+ * - Edge list ('edgelist'), one file per wave: one tie a line, `sender,receiver` by actor label.
+ *   An optional third column gives the value: 1 (a tie, also the default), 0 (no tie) or the
+ *   missing marker (the pair was not observed). The first line is a header, and skipped, when its
+ *   first two fields are sender/receiver, from/to, ego/alter or source/target (any case).
+ *   Actors with no ties appear only if the actors file lists them.
+ * - Adjacency matrix ('matrix'), one file per wave: a square table of 0, 1 or the missing marker;
+ *   the first row holds the actor labels (its first cell, the corner, is ignored) and the first
+ *   column the same labels in the same order. The diagonal must be 0 (or missing). Later waves may
+ *   list the actors in another order: rows and columns are matched by label.
+ * - Actors file (optional; needed for covariates): a header row whose first column is `label`, then
+ *   one column per covariate; one row per actor. A column whose values are all numbers (or missing)
+ *   is numeric, any other is categorical. A covariate that changes between waves has one column per
+ *   wave named `name@1`, `name@2`, ... (wave numbers from 1, no gaps; at least waves 1 .. M-1 of M,
+ *   since the value at wave m acts in the period from wave m to m+1). With an actors file, its
+ *   labels are the actor set and its order the actor order; without one, the actors are the labels
+ *   met in the wave files, in order of first appearance.
+ *
+ * Problems are reported with the file, line and column (both counted from 1) and collected, up to
+ * MAX_PROBLEMS, in the 400 error's details (DataProblemDetails, code data_invalid). Nothing stored
+ * changes unless the whole upload is valid.
+ */
+import { z } from 'zod';
+
+export const MAX_FILE_BYTES = 2 * 1024 * 1024;
+export const MAX_PROBLEMS = 20;
+export const MAX_WAVES = 20;
+export const MAX_ACTORS = 1000;
+export const MAX_LABEL_LENGTH = 60;
+/** A wave-to-wave Jaccard index below this draws a caution (Snijders, van de Bunt & Steglich 2010, from memory). */
+export const JACCARD_CAUTION = 0.2;
+
+export const DATA_FORMATS = ['edgelist', 'matrix'] as const;
+export type DataFormat = (typeof DATA_FORMATS)[number];
+
+const fileText = z.string({ error: 'The file content must be text.' });
+const fileName = z.string().trim().max(200).optional();
+
+export const dataUploadBodySchema = z.object({
+  format: z.enum(DATA_FORMATS, { error: 'The format must be "edgelist" or "matrix".' }),
+  waves: z
+    .array(
+      z.object({
+        label: z.string().trim().max(MAX_LABEL_LENGTH, `A wave label may have at most ${MAX_LABEL_LENGTH} characters.`),
+        content: fileText,
+        /** The file's name, used in problem messages (defaults to the wave label). */
+        fileName,
+      }),
+    )
+    .max(MAX_WAVES, `At most ${MAX_WAVES} waves can be uploaded.`),
+  actors: z.object({ content: fileText, fileName }).optional(),
+  missingMarker: z.string().trim().min(1, 'The missing marker cannot be empty.').max(20).default('NA'),
+});
+export type DataUploadBody = z.input<typeof dataUploadBodySchema>;
+export type ParsedDataUploadBody = z.output<typeof dataUploadBodySchema>;
+
+// ---------- problems ----------
+export interface DataProblem {
+  /** The file's name, e.g. 'wave "spring" (spring.csv)' or 'actors file'; '' for the upload as a whole. */
+  file: string;
+  /** Line and column, counted from 1, when the problem has a place. */
+  line?: number;
+  column?: number;
+  message: string;
+}
+/** details of a data_invalid error. */
+export interface DataProblemDetails {
+  problems: DataProblem[];
+  /** True when more than MAX_PROBLEMS problems were found and only the first ones are listed. */
+  truncated: boolean;
+}
+
+// ---------- responses ----------
+export type CovariateKind = 'numeric' | 'categorical';
+
+export interface NumericSummary {
+  kind: 'numeric';
+  /** The wave this column belongs to (changing covariates), or null for a constant one. */
+  wave: number | null;
+  observed: number;
+  missing: number;
+  min: number | null;
+  max: number | null;
+  mean: number | null;
+}
+export interface CategoricalSummary {
+  kind: 'categorical';
+  wave: number | null;
+  observed: number;
+  missing: number;
+  /** Actors per category, in the order of `categories`. */
+  counts: Record<string, number>;
+}
+export type CovariateSummary = NumericSummary | CategoricalSummary;
+
+export interface CovariateInfo {
+  name: string;
+  kind: CovariateKind;
+  changing: boolean;
+  /** Sorted category labels (categorical only; empty for numeric). */
+  categories: string[];
+  /** One summary for a constant covariate, one per wave column for a changing one. */
+  summaries: CovariateSummary[];
+}
+
+export interface WaveSummary {
+  /** Wave number, from 1. */
+  index: number;
+  label: string;
+  actors: number;
+  ties: number;
+  /** ties / observed ordered pairs. */
+  density: number;
+  /** Reciprocity index 2M/L: the share of ties (with an observed reverse pair) that are returned; null without such ties. */
+  reciprocity: number | null;
+  /** Ordered pairs (off the diagonal) not observed. */
+  missing: number;
+}
+
+export interface WaveChange {
+  from: number;
+  to: number;
+  /** Counted over pairs observed in both waves. */
+  created: number;
+  dissolved: number;
+  stable: number;
+  /** created + dissolved. */
+  hamming: number;
+  /** stable / (stable + created + dissolved); null when neither wave has a tie. */
+  jaccard: number | null;
+  /** A plain warning when the change is too large (Jaccard < 0.2) or there is none; else null. */
+  caution: string | null;
+}
+
+export interface StudyDataResponse {
+  hasData: boolean;
+  format: DataFormat | null;
+  uploadedAt: string | null;
+  actors: string[];
+  covariates: CovariateInfo[];
+  waves: WaveSummary[];
+  changes: WaveChange[];
+}
+
+export interface DataUploadResponse extends StudyDataResponse {
+  /** True when the upload replaced data stored before. */
+  replaced: boolean;
+  message: string;
+}
+
+export interface WaveTiesResponse {
+  index: number;
+  label: string;
+  actors: string[];
+  /** Ties as [sender, receiver] positions in `actors`. */
+  ties: Array<[number, number]>;
+  /** Pairs not observed, as [sender, receiver] positions. */
+  missing: Array<[number, number]>;
+}
