@@ -16,13 +16,15 @@ export default function RootLayout() {
     'PlexMono-Regular': require('../fonts/IBMPlexMono_400Regular.ttf'),
     'PlexMono-Medium': require('../fonts/IBMPlexMono_500Medium.ttf'),
   });
-  if (!loaded && !error) return <View style={{ flex: 1, backgroundColor: colors.paper }} />;
+  // The navigator is mounted from the first render (the router resolves nested routes only
+  // through mounted navigators); until the faces are ready the page stays invisible.
+  const ready = loaded || !!error;
   return (
     <SafeAreaProvider style={{ backgroundColor: colors.paper }}>
       <SWRConfig value={swrOptions}>
         <SessionProvider>
           <StatusBar style="dark" />
-          <View style={{ flex: 1, backgroundColor: colors.paper }}>
+          <View style={{ flex: 1, backgroundColor: colors.paper, opacity: ready ? 1 : 0 }}>
             <Slot />
           </View>
         </SessionProvider>

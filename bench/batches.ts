@@ -5,7 +5,7 @@
  * the goodness-of-fit views on the stored rows. Figures are printed, never judged.
  */
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { AUX_STATISTIC_IDS } from '../shared/auxStatistics';
@@ -91,6 +91,7 @@ async function timedBatch(ds: DataSource, ids: { studyId: number; userId: number
 const batchSection: BenchSection = {
   name: `batches: ${CHAINS} chains, one period, ${N_ACTORS} actors, six effects, all auxiliary statistics`,
   async run(print) {
+    print(`${availableParallelism()} cores; load average before: ${loadavg().map((x) => x.toFixed(2)).join(', ')} (other processes skew the figures, the scaling most)`);
     const dir = mkdtempSync(join(tmpdir(), 'wavefit-bench-'));
     const file = join(dir, 'bench.sqlite');
     const ds = await openDataSource({ database: file });
@@ -143,6 +144,7 @@ const batchSection: BenchSection = {
       print(
         `views: rows read ${fmt(g1 - g0)} ms; GOF of all ${summary.rows.length} statistics (envelopes + 2 Mahalanobis tests each) ${fmt(g2 - g1)} ms; consensus at 0.5 ${fmt(g3 - g2)} ms`,
       );
+      print(`load average after: ${loadavg().map((x) => x.toFixed(2)).join(', ')}`);
       print(`p-values: ${summary.rows.map((r) => `${r.statistic} ${r.pValue.toFixed(3)}`).join(', ')}`);
     } finally {
       await stopJobQueue(ds);

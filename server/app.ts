@@ -7,6 +7,7 @@ import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
 import { modelsRouter } from './models/routes';
+import { reviewRouter } from './review/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
 import { authRouter } from './routes/auth';
 import { dataRouter } from './routes/data';
@@ -56,6 +57,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
+  api.use(reviewRouter(routeDeps));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);
 

@@ -277,10 +277,12 @@ export function fittedStatisticCaution(statistic: AuxStatisticId, effectIds: Rea
       return has('outdegree_activity') ? 'Outdegree activity fits the sum of squared outdegrees, so the spread of this distribution is partly matched by construction.' : null;
     case 'indegree_distribution':
       return has('indegree_popularity') ? 'Indegree popularity fits the sum of squared indegrees, so the spread of this distribution is partly matched by construction.' : null;
-    case 'triad_census':
-      return has('transitive_triplets') || has('three_cycles')
-        ? 'Transitive triplets and three-cycles are weighted sums of triad counts, so the triad census is partly matched by construction.'
-        : null;
+    case 'triad_census': {
+      const fitted = [has('transitive_triplets') ? 'transitive triplets' : null, has('three_cycles') ? 'three-cycles' : null].filter(Boolean);
+      if (fitted.length === 0) return null;
+      const what = fitted.join(' and ');
+      return `The model fits the number of ${what}, ${fitted.length > 1 ? 'which are weighted sums' : 'a weighted sum'} of triad counts, so the triad census is partly matched by construction.`;
+    }
     default:
       return null;
   }

@@ -101,7 +101,7 @@ export function rememberReturnPath(path: string): void {
   returnPath = path;
 }
 export function afterSignInPath(next: unknown): string {
-  const target = safeNext(next ?? returnPath); console.log('[dbg] after', JSON.stringify(next), returnPath, target);
+  const target = safeNext(next ?? returnPath);
   return target;
 }
 export function forgetReturnPath(): void {

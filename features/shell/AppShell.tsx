@@ -88,17 +88,25 @@ function TabLink({ item, active }: { item: NavItem; active: boolean }) {
   );
 }
 
-export function AppShell({ children }: { children: React.ReactNode }) {
+/**
+ * The children (the route's navigator) always sit at the same place in the tree, whatever the
+ * layout and whether the chrome is shown: moving or unmounting a navigator makes the router
+ * forget the nested route. `cover` replaces the visible content (loading, errors) without
+ * unmounting the children.
+ */
+export function AppShell({ children, cover }: { children: React.ReactNode; cover?: React.ReactNode }) {
   const { width } = useBreakpoint();
   const insets = useSafeAreaInsets();
   const pathname = usePathname() || '/';
   const { user } = useSession();
-  const outbox = useOutbox();
+  const chrome = !cover;
+  const outbox = useOutbox(chrome);
   const items = outbox.data ? [...baseItems, outboxItem] : baseItems;
+  const sidebar = navigationOf(width) === 'sidebar';
 
-  if (navigationOf(width) === 'sidebar') {
-    return (
-      <View style={{ flex: 1, flexDirection: 'row', backgroundColor: colors.paper }}>
+  return (
+    <View style={{ flex: 1, flexDirection: sidebar ? 'row' : 'column', backgroundColor: colors.paper }}>
+      {chrome && sidebar ? (
         <View
           role="navigation"
           accessibilityLabel="Main"
@@ -133,47 +141,44 @@ export function AppShell({ children }: { children: React.ReactNode }) {
             </View>
           ) : null}
         </View>
-        <View role="main" style={{ flex: 1 }}>
-          {children}
+      ) : null}
+      {chrome && !sidebar ? (
+        <View
+          style={{
+            paddingTop: insets.top + space.s1,
+            paddingBottom: space.s1,
+            paddingHorizontal: space.s2,
+            borderBottomWidth: 1,
+            borderBottomColor: colors.rule,
+            backgroundColor: colors.paper,
+          }}
+        >
+          <Link href="/" accessibilityLabel="Wavefit, your studies">
+            <Wordmark />
+          </Link>
         </View>
-      </View>
-    );
-  }
-
-  return (
-    <View style={{ flex: 1, backgroundColor: colors.paper }}>
-      <View
-        style={{
-          paddingTop: insets.top + space.s1,
-          paddingBottom: space.s1,
-          paddingHorizontal: space.s2,
-          borderBottomWidth: 1,
-          borderBottomColor: colors.rule,
-          backgroundColor: colors.paper,
-        }}
-      >
-        <Link href="/" accessibilityLabel="Wavefit, your studies">
-          <Wordmark />
-        </Link>
-      </View>
-      <View role="main" style={{ flex: 1 }}>
+      ) : null}
+      <View role="main" style={{ flex: 1, display: chrome ? 'flex' : 'none' }}>
         {children}
       </View>
-      <View
-        role="navigation"
-        accessibilityLabel="Main"
-        style={{
-          flexDirection: 'row',
-          paddingBottom: insets.bottom,
-          backgroundColor: colors.surface,
-          borderTopWidth: 1,
-          borderTopColor: colors.rule,
-        }}
-      >
-        {items.map((item) => (
-          <TabLink key={item.href} item={item} active={item.isActive(pathname)} />
-        ))}
-      </View>
+      {chrome && !sidebar ? (
+        <View
+          role="navigation"
+          accessibilityLabel="Main"
+          style={{
+            flexDirection: 'row',
+            paddingBottom: insets.bottom,
+            backgroundColor: colors.surface,
+            borderTopWidth: 1,
+            borderTopColor: colors.rule,
+          }}
+        >
+          {items.map((item) => (
+            <TabLink key={item.href} item={item} active={item.isActive(pathname)} />
+          ))}
+        </View>
+      ) : null}
+      {cover ? <View style={{ flex: 1 }}>{cover}</View> : null}
     </View>
   );
 }

@@ -17,17 +17,20 @@ export function SignedInGate({ children }: { children: React.ReactNode }) {
     if (!signedOut) return;
     // Come back here after signing in. Once per signed-out spell: the router passes through
     // other paths on its way to /sign-in, and those must not overwrite the page asked for.
-    console.log('[dbg] gate remember', pathname); if (pathname !== '/') rememberReturnPath(pathname);
+    if (pathname !== '/') rememberReturnPath(pathname);
     router.replace('/sign-in');
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [signedOut]);
-  if (session.status === 'loading' || signedOut) return <Loading label="Opening Wavefit…" fill />;
-  if (session.status === 'error') {
-    return (
+  let cover: React.ReactNode = null;
+  if (session.status === 'loading' || signedOut) cover = <Loading label="Opening Wavefit…" fill />;
+  else if (session.status === 'error') {
+    cover = (
       <View style={{ flex: 1, backgroundColor: colors.paper, padding: space.s3, justifyContent: 'center' }}>
         <LoadError message={session.error?.message ?? 'Cannot check your session.'} onRetry={() => void session.refresh()} />
       </View>
     );
   }
-  return <AppShell>{children}</AppShell>;
+  // The route's navigator stays mounted (hidden) while the session is checked, so the router
+  // keeps the nested route the visitor asked for.
+  return <AppShell cover={cover}>{children}</AppShell>;
 }

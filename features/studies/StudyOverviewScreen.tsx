@@ -83,12 +83,16 @@ export function StudyOverviewScreen() {
                 title={s.title}
               >
                 <Text variant="muted">{s.what}</Text>
-                <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }}>
-                  <Icon name="info" size={16} color={colors.muted} />
-                  <Text variant="label" style={{ color: colors.muted }}>
-                    Not available yet.
-                  </Text>
-                </View>
+                {s.key === 'batches' ? (
+                  <TextLink href={`/studies/${study.id}/batches`}>Open the batches</TextLink>
+                ) : (
+                  <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }}>
+                    <Icon name="info" size={16} color={colors.muted} />
+                    <Text variant="label" style={{ color: colors.muted }}>
+                      Not available yet.
+                    </Text>
+                  </View>
+                )}
               </Card>
             ))}
           </View>

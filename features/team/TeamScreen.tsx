@@ -66,7 +66,7 @@ function MemberRow({ member, isMe, manage, studyId, first }: { member: Member; i
           <Badge label={roleLabel(member.role)} tone={roleTones[member.role]} />
         </View>
         <Text variant="figure" style={{ flex: compact ? undefined : 1.2, color: colors.muted }}>
-          {compact ? `Joined ${formatDate(member.joinedAt)}` : formatDate(member.joinedAt)}
+          {`Joined ${formatDate(member.joinedAt)}`}
         </Text>
         {manage && mode.kind === 'view' ? (
           <View style={{ flex: compact ? undefined : 2.2, flexDirection: 'row', gap: space.s1, justifyContent: compact ? 'flex-start' : 'flex-end' }}>
@@ -196,7 +196,7 @@ function InviteForm({ studyId }: { studyId: number }) {
   };
 
   return (
-    <Card>
+    <Card style={{ maxWidth: 640 }}>
       <View role="form" accessibilityLabel="Invite someone" style={{ gap: space.s2 }}>
         {sentTo ? <Banner tone="success">An invitation is on its way to {sentTo}.</Banner> : null}
         {formError ? <Banner tone="error">{formError}</Banner> : null}

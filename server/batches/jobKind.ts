@@ -9,6 +9,7 @@ import { CHAINS_PER_CHUNK, type BatchModel } from '../../shared/batches';
 import type { AuxStatisticId } from '../../shared/auxStatistics';
 import { loadStudyData } from '../data/store';
 import { registerJobKind, type SyncDb } from '../jobs/registry';
+import { recordBatchEnded } from '../notify/notifier';
 import type { BatchChunk, BatchChunkResult, BatchContext } from './context';
 import { auxOptionsOf, buildLayout, layoutOffsets, type ResolvedMaxima } from './layout';
 import { periodCovariates, periodNetworks } from './periods';
@@ -127,7 +128,10 @@ registerJobKind<BatchJobPayload, BatchChunk, BatchContext, BatchChunkResult>(BAT
   workerModule: join(__dirname, 'worker.ts'),
   loadContext: (job, dataSource) => loadBatchContext(dataSource, job.payload.batchId),
   storeChunk: (db, job, chunkIndex, chunk, result) => storeBatchChunk(db, job.payload.batchId, chunkIndex, chunk, result),
-  onEnd(db, job) {
+  // Notifications (server/notify): the team hears when a batch finished or failed.
+  finish: (db, job) => recordBatchEnded(db, job.payload.batchId, 'done'),
+  onEnd(db, job, state, reason) {
+    recordBatchEnded(db, job.payload.batchId, state, reason);
     // A cancelled or failed batch keeps no partial results (its GOF would describe fewer chains than asked).
     db.prepare(`DELETE FROM "batch_results" WHERE "batchId" = ?`).run(job.payload.batchId);
     db.prepare(`UPDATE "batch_tie_counts" SET "networks" = 0, "tieTotal" = 0, "counts" = zeroblob(length("counts")) WHERE "batchId" = ?`).run(

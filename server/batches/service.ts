@@ -77,13 +77,17 @@ export interface CreateBatchInput {
   body: ParsedCreateBatchBody;
 }
 
-function checkModelAgainstData(model: BatchModel, data: LoadedStudyData, periods: number[]): void {
+function checkRateCount(model: BatchModel, data: LoadedStudyData): void {
   const M = data.waves.length;
   if (model.rates.length !== M - 1) {
     throw new BatchInputError(
       `The study has ${M} waves, so the model needs ${M - 1} rate${M - 1 === 1 ? '' : 's'} (one per period); ${model.rates.length} ${model.rates.length === 1 ? 'was' : 'were'} given.`,
     );
   }
+}
+
+function checkModelAgainstData(model: BatchModel, data: LoadedStudyData, periods: number[]): void {
+  checkRateCount(model, data);
   const covs = periodCovariates(data);
   const n = data.actors.length;
   for (const p of periods) {
@@ -153,6 +157,7 @@ export async function createBatch(dataSource: DataSource, input: CreateBatchInpu
       })),
     };
   }
+  checkRateCount(model, data);
   const covered = model.rates.map((r, k) => (r === null ? 0 : k + 1)).filter((p) => p > 0);
   const periods = body.periods ? [...new Set(body.periods)].sort((a, b) => a - b) : covered;
   const badPeriod = periods.find((p) => p > M - 1);

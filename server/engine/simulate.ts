@@ -128,6 +128,17 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
   const cap = options.maxMinisteps ?? Math.ceil(mean + 10 * Math.sqrt(mean) + 10);
   if (!(cap >= 0)) throw new Error(`simulate: maxMinisteps must be >= 0, got ${String(options.maxMinisteps)}`);
 
+  // Effects split into row-uniform ones (folded into one pass) and general ones; zero parameters skipped.
+  const uniformIdx = new Int32Array(K);
+  const generalIdx = new Int32Array(K);
+  let nUniform = 0;
+  let nGeneral = 0;
+  for (let k = 0; k < K; k++) {
+    if (params[k] === 0) continue;
+    if (typeof effects[k].rowUniform === 'function') uniformIdx[nUniform++] = k;
+    else generalIdx[nGeneral++] = k;
+  }
+
   // Buffers, allocated once per period (none in the ministep loop).
   const u = new Float64Array(n);
   const cum = new Float64Array(n);
@@ -161,10 +172,20 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
 
     // Utilities u_j = sum_k beta_k delta_ijk; option i (no change) has utility 0.
     if (rows === null) {
-      u.fill(0);
-      for (let k = 0; k < K; k++) {
-        const b = params[k];
-        if (b !== 0) effects[k].accumulate(state, i, b, u);
+      // Effects with a row-uniform change are folded into one pass that also initialises u.
+      let create = 0;
+      let remove = 0;
+      for (let t = 0; t < nUniform; t++) {
+        const k = uniformIdx[t];
+        const e = effects[k];
+        create += params[k] * e.rowUniform!(state, i, false);
+        remove += params[k] * e.rowUniform!(state, i, true);
+      }
+      const adj = state.adj;
+      for (let j = 0; j < n; j++) u[j] = adj[row + j] !== 0 ? remove : create;
+      for (let t = 0; t < nGeneral; t++) {
+        const k = generalIdx[t];
+        effects[k].accumulate(state, i, params[k], u);
       }
     } else {
       rows.fill(0);

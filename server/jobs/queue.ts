@@ -159,10 +159,11 @@ export class JobQueue extends EventEmitter {
 
   /** Start working: resumes every queued or running job in the database. Calling it again does nothing. */
   async start(): Promise<void> {
-    if (this.started) return;
+    if (this.started && !this.stopped) return;
     this.started = true;
     this.stopped = false;
     this.dirty = true;
+    this.skipped.clear();
     await this.pump();
   }
 

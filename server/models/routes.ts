@@ -12,13 +12,11 @@ import {
   type ParsedStartFitBody,
 } from '../../shared/models';
 import { currentStudy, currentUser } from '../auth/context';
-import { setFitModelResolver } from '../batches/service';
 import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../routes/deps';
 import './jobKind';
 import {
   ModelInputError,
-  batchModelOfFit,
   cancelFit,
   checkModel,
   createModel,
@@ -33,9 +31,6 @@ import {
   updateModel,
   type ModelUpdate,
 } from './service';
-
-// Batches may simulate a stored fit: tell them how to read one.
-setFitModelResolver(batchModelOfFit);
 
 function toApiError(error: unknown): unknown {
   if (error instanceof ModelInputError) {

@@ -5,8 +5,7 @@
  */
 import { randomInt } from 'node:crypto';
 import type { DataSource } from 'typeorm';
-import type { BatchModel } from '../../shared/batches';
-import { effectInfo, type EffectId } from '../../shared/effects';
+import type { EffectId } from '../../shared/effects';
 import {
   modelSpecBodySchema,
   parameterLabel,
@@ -21,15 +20,12 @@ import {
   type ParsedStartFitBody,
 } from '../../shared/models';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
-import { closedFormRate, freePairMask } from '../engine/estimate';
-import { hamming } from '../engine/simulate';
 import { createJobRow, inSyncTransaction, jobQueueFor, parseSqlDate, sqlNow, syncDb, type JobStatus } from '../jobs';
 import type { FitJobPayload, StoredFitPlan } from './context';
 import { FIT_JOB_KIND, plainReason } from './jobKind';
 import { checkSpecAgainstData, effectKey, rateKey, sortedRates, type StoredSpec } from './modelData';
 import { decodeProgress, fitWorkPlan } from './progress';
 import { resultsFromValues } from './results';
-import { periodNetworks } from '../batches/periods';
 
 export class ModelInputError extends Error {
   constructor(
@@ -482,40 +478,4 @@ export async function cancelFit(dataSource: DataSource, row: FitRowDb): Promise<
     throw new ModelInputError(`This fit has already ${state === 'done' ? 'finished' : state === 'failed' ? 'failed' : 'been cancelled'}; there is nothing to cancel.`, 409, 'conflict');
   }
   await jobQueueFor(dataSource).cancel(row.jobId, 'cancelled by a user');
-}
-
-// ---------------------------------------------------------------- for batches
-
-/**
- * A fit's parameters as a batch simulates them: one rate per period of the study (periods the model
- * does not cover get the closed-form rate of their observed change, METHODS.md 7c), and every effect
- * with its estimate or fixed value. Null when the fit does not exist in the study or has no results.
- */
-export async function batchModelOfFit(dataSource: DataSource, studyId: number, fitId: number): Promise<BatchModel | null> {
-  const row = fitRows(dataSource, `f."studyId" = ? AND f."id" = ?`, [studyId, fitId])[0];
-  if (!row || !row.results) return null;
-  const spec = JSON.parse(row.spec) as StoredSpec;
-  const results = JSON.parse(row.results) as FitResults;
-  const byKey = new Map(results.parameters.map((q) => [q.key, q.value]));
-  const data = await loadStudyData(dataSource, studyId);
-  const n = data.actors.length;
-  const networks = periodNetworks(data);
-  const rates = networks.map((net, m) => {
-    const fitted = byKey.get(rateKey(m + 1));
-    if (fitted !== undefined) return fitted;
-    const mask = freePairMask(n);
-    const change = hamming(net.start, net.end, mask);
-    return Math.max(closedFormRate(change, n, n * (n - 1)).rate, 1e-6);
-  });
-  return {
-    source: 'fit',
-    fitId,
-    rates,
-    effects: spec.effects.map((e) => ({
-      id: e.id as EffectId,
-      ...(e.covariate ? { covariate: e.covariate } : {}),
-      label: effectInfo(e.id as EffectId).label + (e.covariate ? ` (${e.covariate})` : ''),
-      value: byKey.get(effectKey(e))!,
-    })),
-  };
 }

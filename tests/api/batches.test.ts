@@ -76,6 +76,26 @@ afterAll(async () => {
   await t.close();
 });
 
+/** A hand-entered fit of a one-period model (density and reciprocity), through the models API. */
+async function fixedFit(token: string, study: number): Promise<number> {
+  const model = await request(t.app)
+    .post(`/api/studies/${study}/models`)
+    .set(bearer(token))
+    .send({
+      name: 'Density and reciprocity',
+      rates: [{ period: 1, estimate: false, value: 2.5 }],
+      effects: [
+        { id: 'density', estimate: false, value: -2.2 },
+        { id: 'reciprocity', estimate: false, value: 1.6 },
+      ],
+    });
+  expect(model.status).toBe(201);
+  const fit = await request(t.app).post(`/api/studies/${study}/models/${model.body.model.id}/fits`).set(bearer(token)).send({ mode: 'fixed' });
+  expect(fit.status).toBe(201);
+  expect(fit.body.fit.state).toBe('done');
+  return fit.body.fit.id as number;
+}
+
 describe('batches API', () => {
   let batchId: number;
 
@@ -142,7 +162,7 @@ describe('batches API', () => {
     expect(gof.test.outOfSupport.map((o) => gof.components.indexOf(o.component))).toEqual(m.out_of_support);
     // 120 chains: the caution about the p-value's resolution (1/121) must be there.
     expect(gof.caution).toMatch(/With 120 chains a p-value below 1\/\(N\+1\) = 0\.008/);
-    expect(gof.caution).toMatch(/Transitive triplets/);
+    expect(gof.caution).toMatch(/fits the number of transitive triplets, a weighted sum of triad counts/);
     expect(gof.reading).toMatch(/p = /);
   });
 
@@ -178,6 +198,22 @@ describe('batches API', () => {
     expect(top.status).toBe(200);
     expect(top.body.ties).toHaveLength(top.body.top);
     expect(top.body.top).toBe(Math.round(top.body.meanSimulatedTies));
+  });
+
+  it('a batch simulates a stored fit: its values are copied and only its periods run', async () => {
+    const fitId = await fixedFit(stats, studyId);
+    const res = await request(t.app).post(base()).set(bearer(stats)).send({ fitId, chains: 20, seed: 3, statistics: ['dyad_census'] });
+    expect(res.status).toBe(201);
+    const batch = res.body.batch as BatchDetail;
+    expect(batch.source).toBe('fit');
+    expect(batch.fitId).toBe(fitId);
+    expect(batch.periods).toEqual([1]);
+    expect(batch.model.rates).toEqual([2.5, null]);
+    expect(batch.model.effects.map((e) => [e.id, e.value])).toEqual([
+      ['density', -2.2],
+      ['reciprocity', 1.6],
+    ]);
+    expect((await waitDone(batch.id)).state).toBe('done');
   });
 
   it('the same seed gives the same stored statistics', async () => {
@@ -237,6 +273,25 @@ describe('bad batch requests store nothing', () => {
     });
   }
 
+  it('a fit of another study is not found (404), and a period the fit does not cover is refused', async () => {
+    // A hand-entered ("fixed") fit in the other study, made through the models API.
+    const upload = await request(t.app)
+      .post(`/api/studies/${otherStudyId}/data`)
+      .set(bearer(outsider))
+      .send({ format: 'edgelist', waves: [{ label: 'w1', content: 'a,b\nb,c\n' }, { label: 'w2', content: 'a,b\nc,a\n' }], actors: { content: 'label\na\nb\nc\n' } });
+    expect(upload.status).toBe(201);
+    const foreignFit = await fixedFit(outsider, otherStudyId);
+    const before = await t.counts(...tables);
+    const res = await request(t.app).post(base()).set(bearer(stats)).send({ fitId: foreignFit, chains: 10 });
+    expect(res.status).toBe(404);
+    expect(res.body.error.message).toMatch(/Fit not found in this study/);
+    const ownFit = await fixedFit(stats, studyId);
+    const uncovered = await request(t.app).post(base()).set(bearer(stats)).send({ fitId: ownFit, chains: 10, periods: [2] });
+    expect(uncovered.status).toBe(400);
+    expect(uncovered.body.error.message).toMatch(/does not cover period 2; it covers period 1/);
+    expect(await t.counts(...tables)).toEqual(before);
+  });
+
   it('a reviewer may not queue a batch (403) and an outsider does not see the study (404)', async () => {
     const before = await t.counts(...tables);
     const res = await request(t.app).post(base()).set(bearer(reviewer)).send({ model: DEMO_MODEL, chains: 10 });
@@ -249,11 +304,27 @@ describe('bad batch requests store nothing', () => {
     expect(await t.counts(...tables)).toEqual(before);
   });
 
+  it('a study with batches refuses new data (409), so stored results keep matching their waves', async () => {
+    const created = await request(t.app).post('/api/studies').set(bearer(outsider)).send({ name: 'Third station', description: '' });
+    expect(created.status).toBe(201);
+    const third = created.body.study.id as number;
+    const upload = { format: 'edgelist', waves: [{ label: 'w1', content: 'a,b\nb,c\n' }, { label: 'w2', content: 'a,b\nc,a\n' }], actors: { content: 'label\na\nb\nc\n' } };
+    expect((await request(t.app).post(`/api/studies/${third}/data`).set(bearer(outsider)).send(upload)).status).toBe(201);
+    const batch = await request(t.app)
+      .post(`/api/studies/${third}/batches`)
+      .set(bearer(outsider))
+      .send({ model: { rates: [1], effects: [{ id: 'density', value: -1 }] }, chains: 4, seed: 1 });
+    expect(batch.status).toBe(201);
+    const again = await request(t.app).post(`/api/studies/${third}/data`).set(bearer(outsider)).send(upload);
+    expect(again.status).toBe(409);
+    expect(again.body.error.message).toMatch(/simulation batches/);
+  });
+
   it('a batch of another study is not found through this study', async () => {
     const res = await request(t.app).post(`/api/studies/${otherStudyId}/batches`).set(bearer(outsider)).send({ model: DEMO_MODEL, chains: 10 });
-    // The other study has no data: refused before anything is stored.
+    // The other study has one period: the demo model's two rates are refused before anything is stored.
     expect(res.status).toBe(400);
-    expect(res.body.error.message).toMatch(/no data yet/);
+    expect(res.body.error.message).toMatch(/needs 1 rate \(one per period\); 2 were given/);
     const list = await request(t.app).get(base()).set(bearer(stats));
     const some = list.body.batches[0].id as number;
     const cross = await request(t.app).get(`/api/studies/${otherStudyId}/batches/${some}`).set(bearer(outsider));

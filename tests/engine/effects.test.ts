@@ -94,6 +94,7 @@ describe('effects: change statistics and targets against brute force', () => {
               x[i][j] = 1 - x[i][j];
               expect(effect.change(state, i, j)).toBeCloseTo(delta, 9);
               expect(row[j]).toBeCloseTo(1.5 * delta, 9);
+              if (effect.rowUniform) expect(effect.rowUniform(state, i, x[i][j] === 1)).toBeCloseTo(delta, 9);
               checked++;
             }
           }

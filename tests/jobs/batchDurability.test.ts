@@ -97,7 +97,7 @@ describe('batch durability (in process)', () => {
   });
 
   it('1 worker, 2 workers and 2 workers with a killed worker store identical results, equal to the reference', async () => {
-    const chains = 300;
+    const chains = 600;
     const runs: { workers: number; crash: boolean }[] = [
       { workers: 1, crash: false },
       { workers: 2, crash: false },
@@ -110,21 +110,24 @@ describe('batch durability (in process)', () => {
       const id = await createBatch(ds, { studyId, userId, body: body(chains, 99) });
       expect(queue.workerCount).toBe(run.workers);
       const [{ jobId }] = await ds.query(`SELECT "jobId" FROM "batches" WHERE "id" = ?`, [id]);
+      let killed: { jobId: number; chunkIndex: number } | null = null;
       if (run.crash) {
-        let killed = null;
-        for (let t = 0; t < 500 && !killed; t++) {
-          await sleep(5);
-          if (queue.status(jobId)!.chunksDone >= 2) killed = queue.crashWorkerForTest();
-        }
-        expect(killed).not.toBeNull();
+        // Right after the second stored chunk, kill a worker that is busy with another one.
+        let stored = 0;
+        const onProgress = () => {
+          if (++stored >= 2 && !killed) killed = queue.crashWorkerForTest();
+          if (killed) queue.off('progress', onProgress);
+        };
+        queue.on('progress', onProgress);
       }
       expect(await queue.whenSettled(jobId)).toBe('done');
+      if (run.crash) expect(killed).not.toBeNull();
       if (run.crash) expect(queue.status(jobId)!.log).toMatch(/worker stopped unexpectedly/);
       await stopJobQueue(ds);
       ids.push(id);
     }
     const reference = await referenceResults(ds, ids[0], chains, 2);
-    expect(reference.blocks.size).toBe(2 * 12);
+    expect(reference.blocks.size).toBe(2 * 24);
     for (const id of ids) {
       const stored = storedResults(ds, id);
       expect(stored.blocks).toEqual(reference.blocks);

@@ -70,12 +70,13 @@ describe('job queue', () => {
     await q.start();
     const id = await q.enqueue('test-sum', payload);
     let killed: { jobId: number; chunkIndex: number } | null = null;
-    for (let t = 0; t < 200 && !killed; t++) {
-      await sleep(20);
-      if (q.status(id)!.chunksDone >= 1) killed = q.crashWorkerForTest();
-    }
-    expect(killed).not.toBeNull();
+    const onProgress = () => {
+      if (!killed) killed = q.crashWorkerForTest();
+      if (killed) q.off('progress', onProgress);
+    };
+    q.on('progress', onProgress);
     expect(await q.whenSettled(id)).toBe('done');
+    expect(killed).not.toBeNull();
     expect(storedSums(syncDb(dataSource), id)).toEqual(expected(payload));
     expect(String(jobRow(id).log)).toMatch(new RegExp(`worker stopped unexpectedly during chunk ${killed!.chunkIndex}`));
     await q.stop();

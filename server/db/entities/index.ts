@@ -13,6 +13,7 @@ import { WaveEntity } from './Wave';
 import { JobChunkEntity, JobEntity } from '../../jobs/entities';
 import { BatchEntity, BatchResultEntity, BatchTieCountsEntity } from '../../batches/entities';
 import { FitEntity, ModelSpecEntity } from '../../models/entities';
+import { reviewEntities } from '../../review/entities';
 
 export * from './Actor';
 export * from './Covariate';
@@ -37,4 +38,5 @@ export const entities = [
   BatchTieCountsEntity,
   ModelSpecEntity,
   FitEntity,
+  ...reviewEntities,
 ];

@@ -31,6 +31,9 @@ export function densityEffect(): Effect {
     statistic(state: NetworkState): number {
       return state.ties;
     },
+    rowUniform(_state: NetworkState, _i: number, deleting: boolean): number {
+      return deleting ? -1 : 1;
+    },
   };
 }
 

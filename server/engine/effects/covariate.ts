@@ -90,6 +90,9 @@ export function covariateEgoEffect(name: string, values: Float64Array, centring:
       for (let i = 0; i < state.n; i++) s += c[i] * state.outdeg[i];
       return s;
     },
+    rowUniform(_state: NetworkState, i: number, deleting: boolean): number {
+      return deleting ? -c[i] : c[i];
+    },
   };
 }
 

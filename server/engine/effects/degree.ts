@@ -68,5 +68,9 @@ export function outdegreeActivityEffect(): Effect {
       for (let i = 0; i < state.n; i++) s += state.outdeg[i] * state.outdeg[i];
       return s;
     },
+    rowUniform(state: NetworkState, i: number, deleting: boolean): number {
+      const d = state.outdeg[i];
+      return deleting ? -(2 * d - 1) : 2 * d + 1;
+    },
   };
 }

@@ -35,6 +35,12 @@ export interface Effect {
   accumulate(state: NetworkState, i: number, weight: number, out: Float64Array): void;
   /** The network total sum_i s_i(x), the target statistic of the method of moments. */
   statistic(state: NetworkState): number;
+  /**
+   * Optional fast path for effects whose delta_ij depends on j only through x_ij (density, outdegree
+   * activity, covariate ego): the change for creating any tie of ego i (deleting = false) or for deleting
+   * any (deleting = true). The simulator then folds such effects into one pass over the row.
+   */
+  rowUniform?(state: NetworkState, i: number, deleting: boolean): number;
 }
 
 /** A numeric covariate (NaN = missing) or a categorical one (integer codes >= 0, -1 = missing). */

@@ -18,7 +18,14 @@ import type { Effect } from '../effects';
 import { deriveSeed, createRng } from '../prng';
 import { simulatePeriod, targetStatistics, hamming } from '../simulate';
 import { NetworkState } from '../state';
-import type { MomentProblem, ParameterKind } from './methodOfMoments';
+import { EstimationFailed, type MomentProblem, type ParameterKind } from './methodOfMoments';
+
+/**
+ * A rate above this many opportunities per actor and possible partner (lambda > 100 n) means every tie
+ * is revisited many times within the period: the chain is at its stationary state and the observed
+ * change no longer informs the rate. The estimator treats it as a runaway (our choice, METHODS 8.9).
+ */
+export const RATE_LIMIT_PER_ACTOR = 100;
 
 export interface PeriodInput {
   /** Observed network at the start of the period (missing ties already imputed, METHODS 1.4), n*n. */
@@ -56,7 +63,7 @@ export interface SaomProblemInput {
   seed: number;
   /**
    * Largest expected number of ministeps per period (n_m * lambda_m) accepted before a run is called a
-   * runaway (default 2,000,000).
+   * runaway (default 2,000,000); rates are also limited to RATE_LIMIT_PER_ACTOR * n_m.
    */
   maxExpectedMinisteps?: number;
 }
@@ -226,6 +233,10 @@ export function buildSaomProblem(input: SaomProblemInput): SaomProblem {
     return { rates: r, params: b };
   };
 
+  // Runaway guard (METHODS 8.9): rates above these limits stop the run with a reason.
+  const rateLimits = observedChange.map((oc) =>
+    oc.activeActors > 0 ? Math.min(maxExpected / oc.activeActors, RATE_LIMIT_PER_ACTOR * oc.activeActors) : Infinity,
+  );
   const rateSlot = new Int32Array(M).fill(-1);
   const paramSlot = new Int32Array(K).fill(-1);
   estimated.forEach((q, e) => {
@@ -244,11 +255,12 @@ export function buildSaomProblem(input: SaomProblemInput): SaomProblem {
       const z = new Array<number>(estimated.length).fill(0);
       for (let m = 0; m < M; m++) {
         const per = periods[m];
-        const expected = observedChange[m].activeActors * r[m];
-        if (!(expected <= maxExpected)) {
-          throw new Error(
-            `the rate of period ${m + 1} reached ${r[m].toPrecision(4)}, about ${Math.round(expected)} ministeps per period ` +
-              `(limit ${maxExpected}); the rate is running away`,
+        if (!(r[m] <= rateLimits[m])) {
+          throw new EstimationFailed(
+            `the rate of period ${m + 1} reached ${r[m].toPrecision(4)} (limit ${rateLimits[m].toPrecision(4)}: ` +
+              `${RATE_LIMIT_PER_ACTOR} opportunities per actor and possible partner, at most ${maxExpected} ministeps per period); ` +
+              'it is running away, so the observed change is probably more than the model can produce. Fix this rate, or add effects that explain the change.',
+            phase,
           );
         }
         const rng = createRng(deriveSeed(seed, phase, iteration, m));

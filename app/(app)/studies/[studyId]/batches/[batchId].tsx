@@ -1,0 +1,3 @@
+import { BatchScreen } from '../../../../../features/batches/BatchScreen';
+
+export default BatchScreen;

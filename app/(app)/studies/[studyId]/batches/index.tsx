@@ -1,0 +1,3 @@
+import { BatchListScreen } from '../../../../../features/batches/BatchListScreen';
+
+export default BatchListScreen;

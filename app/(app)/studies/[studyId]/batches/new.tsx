@@ -1,0 +1,3 @@
+import { NewBatchScreen } from '../../../../../features/batches/NewBatchScreen';
+
+export default NewBatchScreen;
