@@ -80,6 +80,7 @@ export type ApiErrorCode =
   | 'invitation_used'
   | 'payload_too_large'
   | 'rate_limited'
+  | 'batch_not_ready'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */

@@ -27,7 +27,7 @@ const plannedSections = [
 
 function Figure({ label, value }: { label: string; value: number }) {
   return (
-    <View style={{ minWidth: 96, gap: 2 }}>
+    <View style={{ minWidth: 80, gap: 2 }}>
       <Text variant="figureLarge">{value}</Text>
       <Text variant="caption">{label}</Text>
     </View>
@@ -60,10 +60,15 @@ export function StudyOverviewScreen() {
             <View style={{ flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.s1 }}>
               <Text variant="label">Your role</Text>
               <Badge label={roleLabel(study.myRole)} tone={study.myRole ? roleTones[study.myRole] : 'neutral'} />
-              {study.myRole ? <Text variant="caption">— {roleDescriptions[study.myRole]}</Text> : null}
+              {study.myRole ? (
+                <Text variant="caption" style={compact ? { width: '100%' } : null}>
+                  {compact ? '' : '— '}
+                  {compact ? roleDescriptions[study.myRole].replace(/^./, (c) => c.toUpperCase()) : roleDescriptions[study.myRole]}.
+                </Text>
+              ) : null}
             </View>
             <View
-              style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s4, borderTopWidth: 1, borderTopColor: colors.rule, paddingTop: space.s2 }}
+              style={{ flexDirection: 'row', flexWrap: 'wrap', gap: compact ? space.s3 : space.s4, borderTopWidth: 1, borderTopColor: colors.rule, paddingTop: space.s2 }}
               accessibilityLabel={`${study.memberCount} members, ${study.waveCount} waves, ${study.actorCount} actors`}
             >
               <Figure label="Members" value={study.memberCount} />

@@ -72,7 +72,7 @@ export function batchesRouter(deps: RouteDeps): Router {
         failed: 'failed',
         cancelled: 'was cancelled',
       };
-      throw new ApiError(409, 'batch_not_ready' as ApiErrorCode, `This batch ${words[batch.summary.state] ?? batch.summary.state}; its results are shown once it is done.`);
+      throw new ApiError(409, 'batch_not_ready', `This batch ${words[batch.summary.state] ?? batch.summary.state}; its results are shown once it is done.`);
     }
   };
   const matrixOf = (batch: LoadedBatch, period: number) => cache.get(`${batch.row.id}:${period}`, () => periodMatrix(dataSource, batch, period));

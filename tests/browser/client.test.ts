@@ -39,6 +39,13 @@ describe.each<ViewportName>(['phone', 'desktop'])('the lead at the %s width', (v
       await expect(page.getByRole('heading', { name: 'Sign in' }).isVisible()).resolves.toBe(true);
       await screenshot(page, 'sign-in', viewport);
 
+      // Keyboard order follows reading order: e-mail, password, then the button.
+      await page.getByLabel('E-mail', { exact: true }).focus();
+      await page.keyboard.press('Tab');
+      expect(await page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Password');
+      await page.keyboard.press('Tab');
+      expect(await page.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Sign in');
+
       // Wrong password: the server's message is shown as an alert, no session is started.
       await signIn(page, LEAD.email, 'not-the-password-9');
       const alert = page.getByRole('alert');
