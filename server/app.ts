@@ -8,6 +8,7 @@ import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
 import { modelsRouter } from './models/routes';
 import { reviewRouter } from './review/routes';
+import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
 import { authRouter } from './routes/auth';
 import { dataRouter } from './routes/data';
@@ -57,7 +58,9 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
-  api.use(reviewRouter(routeDeps));
+  const review = reviewRouter(routeDeps);
+  api.use(review);
+  api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);
 

@@ -1,0 +1,60 @@
+/**
+ * CSV exports of a fit report's numbers (RFC 4180: comma-separated, fields with commas, quotes or
+ * line breaks quoted, CRLF line ends): the goodness-of-fit table (one row per statistic, period and
+ * component) and the estimates table (one row per parameter).
+ */
+import type { ReportJson } from '../../shared/review';
+
+function field(value: string | number | null | undefined): string {
+  if (value === null || value === undefined) return '';
+  const s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : value;
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+const line = (values: (string | number | null | undefined)[]) => values.map(field).join(',');
+
+export function gofCsv(report: ReportJson): string {
+  const coverages = report.statistics[0]?.bands.map((b) => b.coverage).sort((a, b) => a - b) ?? [];
+  const bandCols = coverages.flatMap((c) => [`band${Math.round(c * 100)}_lower`, `band${Math.round(c * 100)}_upper`]);
+  const rows = [
+    line(['batch', 'statistic', 'period', 'component', 'observed', 'simulated_mean', 'simulated_sd', ...bandCols, 'p_value', 'p_value_pooled', 'mahalanobis_distance', 'chains', 'verdict', 'verdict_note', 'verdict_by', 'verdict_at']),
+  ];
+  for (const s of report.statistics) {
+    s.components.forEach((component, k) => {
+      const bands = coverages.flatMap((c) => {
+        const b = s.bands.find((x) => x.coverage === c)!;
+        return [b.lower[k], b.upper[k]];
+      });
+      rows.push(
+        line([
+          report.batch.id,
+          s.statistic,
+          s.period,
+          component,
+          s.observed[k],
+          s.mean[k],
+          s.sd[k],
+          ...bands,
+          s.pValue,
+          s.pValuePooled,
+          s.distance,
+          s.chains,
+          s.verdict?.verdict ?? '',
+          s.verdict?.note ?? '',
+          s.verdict?.updatedBy?.name ?? '',
+          s.verdict?.updatedAt ?? '',
+        ]),
+      );
+    });
+  }
+  return rows.join('\r\n') + '\r\n';
+}
+
+export function estimatesCsv(report: ReportJson): string {
+  const rows = [line(['batch', 'fit', 'parameter', 'label', 'value', 'standard_error', 'convergence_t'])];
+  for (const r of report.model.rateDetails) {
+    if (r.value !== null) rows.push(line([report.batch.id, report.batch.fitId, `rate:${r.period}`, `Rate, period ${r.period}`, r.value, r.se, null]));
+  }
+  for (const e of report.model.effects) rows.push(line([report.batch.id, report.batch.fitId, e.key, e.label, e.value, e.se, e.convergenceT]));
+  return rows.join('\r\n') + '\r\n';
+}

@@ -1,0 +1,91 @@
+/**
+ * The fit report of a batch (contract in shared/review.ts): its status and sign-offs, the lead's
+ * sign-off (ability signReport; recorded with who and when, and the team is notified), and the
+ * exports: PDF (pdfkit, fonts embedded), CSV and JSON. Mounted at /api.
+ */
+import { Router, type Request } from 'express';
+import { can } from '../../shared/api';
+import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/review';
+import { currentStudy, currentUser } from '../auth/context';
+import { badRequest, idParam, validate } from '../errors';
+import { syncDb } from '../jobs/db';
+import type { RouteDeps } from '../routes/deps';
+import { GofCache } from '../review/gofData';
+import { guarded, type ReviewRouter } from '../review/routes';
+import { changedSince, loadReviewBatch, signOff, signoffsOf, verdictCounts } from '../review/service';
+import { estimatesCsv, gofCsv } from './csv';
+import { reportPdf } from './pdf';
+import { buildReport } from './reportData';
+
+function compareIds(req: Request): number[] {
+  try {
+    return parseIdList(req.query.compare, 'Batches to compare');
+  } catch (e) {
+    throw badRequest((e as Error).message);
+  }
+}
+
+function fileName(studyName: string, batchId: number, ext: string): string {
+  const slug = studyName.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'study';
+  return `wavefit-report-${slug}-batch-${batchId}.${ext}`;
+}
+
+export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notifier'>): Router {
+  const { dataSource, auth } = deps;
+  const router = Router();
+  const gof = new GofCache();
+  const B = '/studies/:studyId/batches/:batchId';
+  const member = (ability: Parameters<typeof auth.requireStudyRole>[0]) => [auth.requireUser, auth.requireStudyRole(ability)];
+  const batchOf = (req: Request) => loadReviewBatch(dataSource, currentStudy(req).study.id, idParam(req, 'batchId', 'Batch'));
+
+  router.get(`${B}/report`, ...member('read'), guarded((req, res) => {
+    const batch = batchOf(req);
+    const db = syncDb(dataSource);
+    const signoffs = signoffsOf(db, batch.row.id);
+    const { role } = currentStudy(req);
+    const body: ReportStatus = {
+      batchId: batch.row.id,
+      batchLabel: batch.row.label,
+      state: batch.summary.state,
+      counts: verdictCounts(db, batch),
+      signoffs,
+      changedSinceSignoff: changedSince(db, batch.row.id, signoffs[0]),
+      canSign: currentUser(req).isAdmin || can(role, 'signReport'),
+    };
+    res.json(body);
+  }));
+
+  router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), guarded(async (req, res) => {
+    const signoff = await signOff(dataSource, batchOf(req), currentUser(req), (req.body as { note: string }).note);
+    await review.notifier.flush();
+    res.status(201).json({ signoff });
+  }));
+
+  router.get(`${B}/report.json`, ...member('read'), guarded((req, res) => {
+    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
+    res.set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, 'json')}"`).json(report);
+  }));
+
+  router.get(`${B}/report.csv`, ...member('read'), guarded((req, res) => {
+    const table = req.query.table === undefined || req.query.table === '' ? 'gof' : String(req.query.table);
+    if (table !== 'gof' && table !== 'estimates') throw badRequest('The table is "gof" (envelopes, p-values and verdicts) or "estimates".');
+    const report = buildReport(dataSource, gof, batchOf(req), []);
+    res
+      .status(200)
+      .type('text/csv; charset=utf-8')
+      .set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, table === 'gof' ? 'csv' : 'estimates.csv')}"`)
+      .send(table === 'gof' ? gofCsv(report) : estimatesCsv(report));
+  }));
+
+  router.get(`${B}/report.pdf`, ...member('read'), guarded(async (req, res) => {
+    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
+    const pdf = await reportPdf(report);
+    res
+      .status(200)
+      .type('application/pdf')
+      .set('Content-Disposition', `${req.query.download === '1' ? 'attachment' : 'inline'}; filename="${fileName(report.study.name, report.batch.id, 'pdf')}"`)
+      .send(pdf);
+  }));
+
+  return router;
+}
