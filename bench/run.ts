@@ -4,8 +4,9 @@
  */
 import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
+import { estimateSections } from './estimate';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

@@ -54,7 +54,7 @@ async function shouldSeed(config: Config, countUsers: () => Promise<number>): Pr
 export async function start(config: Config = loadConfig()): Promise<Server> {
   const dataSource = await openDataSource({ database: config.dbPath });
   if (await shouldSeed(config, () => dataSource.getRepository(UserEntity).count())) {
-    console.log(describeSeed(await seedDemo(dataSource, { passwordHash: config.passwordHash })));
+    console.log(describeSeed(await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: true })));
   }
   const mailer = createMailer(config);
   if (mailer.kind === 'outbox') {

@@ -12,6 +12,7 @@
  * Endpoints (under /api, auth as in shared/api.ts):
  *   GET  /studies/:studyId/batches/:batchId/board                          -> BoardResponse           (members)
  *   GET  /studies/:studyId/batches/:batchId/board/chart?statistic=&period= -> EnvelopeChartDto        (members; batch done)
+ *   GET  /studies/:studyId/batches/:batchId/consensus/layout?period=      -> ConsensusLayoutDto      (members; node positions, once per batch)
  *   POST /studies/:studyId/batches/:batchId/verdicts       VerdictBody     -> { verdict: VerdictDto } (review; 201 when new)
  *   GET  /studies/:studyId/batches/:batchId/verdicts/history?statistic=&period=
  *                                                                          -> { history: VerdictChange[] } (members)
@@ -228,6 +229,19 @@ export interface NotificationPreferences {
 }
 export const DEFAULT_PREFERENCES: NotificationPreferences = { batchEnded: true, reviewRequested: true, reportSigned: true };
 
+// ---------- consensus view ----------
+/** Node positions (in [0, 1]^2, seeded, fixed per batch and period), the observed end-wave ties and the actors' covariates. */
+export interface ConsensusLayoutDto {
+  batchId: number;
+  period: number;
+  actors: string[];
+  positions: Array<[number, number]>;
+  /** Observed ties at the end of the period (pairs observed in the end wave only), as [sender, receiver]. */
+  observedTies: Array<[number, number]>;
+  /** Each covariate's value per actor at the start of the period (null when missing). */
+  covariates: { name: string; kind: 'numeric' | 'categorical'; categories: string[]; values: (number | string | null)[] }[];
+}
+
 // ---------- compare ----------
 export interface CompareColumn {
   /** "batch:3" or "fit:7". */
@@ -443,7 +457,9 @@ export function niceTicks(min: number, max: number, count = 5): number[] {
 }
 
 /** The plotted values of a card: raw counts, or standardised components (see chartScaleOf). */
-export function plotSeries(chart: Pick<EnvelopeChartDto, 'statistic' | 'components' | 'observed' | 'mean' | 'sd' | 'bands' | 'scale'>): PlotSeries {
+export function plotSeries(
+  chart: Pick<EnvelopeChartDto, 'components' | 'observed' | 'mean' | 'sd' | 'scale'> & { bands: { coverage: number; lower: number[]; upper: number[] }[] },
+): PlotSeries {
   const bands = [...chart.bands].sort((a, b) => b.coverage - a.coverage).map((b) => ({ coverage: b.coverage, lower: [...b.lower], upper: [...b.upper] }));
   const wide = bands[0];
   const outside = chart.observed.map((x, k) => (wide ? x < wide.lower[k] - 1e-9 || x > wide.upper[k] + 1e-9 : false));

@@ -208,7 +208,11 @@ export function BatchScreen() {
       subtitle={batch ? `${plural(batch.chains, 'chain')} · seed ${batch.seed} · started ${formatDate(batch.createdAt)}${batch.createdBy ? ` by ${batch.createdBy}` : ''}` : undefined}
       above={<TextLink href={`/studies/${studyId}/batches`}>← Batches</TextLink>}
       actions={
-        active && mayRun ? <Button label="Cancel batch" variant="danger" onPress={doCancel} loading={cancelling} testID="batch-cancel" /> : undefined
+        active && mayRun ? (
+          <Button label="Cancel batch" variant="danger" onPress={doCancel} loading={cancelling} testID="batch-cancel" />
+        ) : batch?.state === 'done' ? (
+          <Button label="Review board" icon="pass" href={`/studies/${studyId}/board/${batch.id}`} />
+        ) : undefined
       }
       testID="batch-page"
     >

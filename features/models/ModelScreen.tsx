@@ -336,7 +336,7 @@ export function ModelScreen() {
               )}
             </Section>
           ) : null}
-          <Section title="Fits" description={latestDone ? undefined : 'No finished fit yet.'}>
+          <Section title="Fits" description={fitList.length > 0 && !latestDone ? 'No finished fit yet.' : undefined}>
             {fits.error ? <LoadError message={fits.error.message} onRetry={() => void fits.mutate()} /> : null}
             {fits.data && fitList.length === 0 ? (
               <EmptyState

@@ -26,6 +26,7 @@ interface NavItem {
 
 const baseItems: NavItem[] = [
   { href: '/', label: 'Studies', icon: 'studies', isActive: (p) => p === '/' || p.startsWith('/studies') },
+  { href: '/inbox', label: 'Inbox', icon: 'mail', isActive: (p) => p.startsWith('/inbox') },
   { href: '/account', label: 'Account', icon: 'account', isActive: (p) => p.startsWith('/account') },
 ];
 const outboxItem: NavItem = { href: '/dev/outbox', label: 'Outbox', icon: 'outbox', isActive: (p) => p.startsWith('/dev/outbox') };

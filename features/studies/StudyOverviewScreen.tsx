@@ -90,6 +90,10 @@ export function StudyOverviewScreen() {
                 <Text variant="muted">{s.what}</Text>
                 {s.key === 'batches' ? (
                   <TextLink href={`/studies/${study.id}/batches`}>Open the batches</TextLink>
+                ) : s.key === 'models' ? (
+                  <TextLink href={`/studies/${study.id}/models`}>Open the models</TextLink>
+                ) : s.key === 'board' ? (
+                  <TextLink href={`/studies/${study.id}/board`}>Open the review board</TextLink>
                 ) : (
                   <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }}>
                     <Icon name="info" size={16} color={colors.muted} />

@@ -12,6 +12,8 @@ import { DEFAULT_PASSWORD_HASH, loadConfig, type PasswordHashConfig } from '../c
 import { parseUpload } from '../data/parse';
 import { replaceStudyData } from '../data/store';
 import { dataUploadBodySchema } from '../../shared/data';
+import { stopJobQueue } from '../jobs';
+import { seedDemoResults, type DemoResults } from '../review/demo';
 import { openDataSource } from './dataSource';
 import { demoUpload } from './demo-data';
 import { MembershipEntity } from './entities/Membership';
@@ -49,11 +51,13 @@ export interface SeedResult {
   createdData: boolean;
   users: readonly DemoUser[];
   password: string;
+  /** With options.withResults: the demo models, fits and batches (server/review/demo.ts). */
+  results?: DemoResults;
 }
 
 export async function seedDemo(
   dataSource: DataSource,
-  options: { passwordHash?: PasswordHashConfig } = {},
+  options: { passwordHash?: PasswordHashConfig; withResults?: boolean } = {},
 ): Promise<SeedResult> {
   const hashOptions = options.passwordHash ?? DEFAULT_PASSWORD_HASH;
   const users = dataSource.getRepository(UserEntity);
@@ -98,7 +102,14 @@ export async function seedDemo(
     createdData = true;
   }
 
-  return { ...result, createdData, createdUsers, users: DEMO_USERS, password: DEMO_PASSWORD };
+  // Fitted models and finished batches for the review board (about 10 s; off for the API tests).
+  let results: DemoResults | undefined;
+  if (options.withResults) {
+    results = await seedDemoResults(dataSource, result.studyId);
+    // Its queue stops here, so the server starts its own with its own options.
+    await stopJobQueue(dataSource);
+  }
+  return { ...result, createdData, createdUsers, users: DEMO_USERS, password: DEMO_PASSWORD, results };
 }
 
 export function describeSeed(result: SeedResult): string {
@@ -115,10 +126,11 @@ async function main(): Promise<void> {
   const config = loadConfig();
   const dataSource = await openDataSource({ database: config.dbPath });
   try {
-    const result = await seedDemo(dataSource, { passwordHash: config.passwordHash });
+    const result = await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: true });
     console.log(`Database: ${config.dbPath}`);
     console.log(describeSeed(result));
   } finally {
+    await stopJobQueue(dataSource);
     await dataSource.destroy();
   }
 }

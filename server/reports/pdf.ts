@@ -4,9 +4,11 @@
  * points), with the same geometry as the board (plotSeries in shared/review.ts). Fonts come from
  * fonts/ and are embedded; nothing is fetched. Verdicts always show as a word with a drawn icon.
  */
+import { readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import PDFDocument from 'pdfkit';
 import {
+  chartScaleOf,
   formatPValue,
   plotSeries,
   pValueWords,
@@ -19,6 +21,22 @@ import {
 } from '../../shared/review';
 
 const FONTS = resolve(__dirname, '../../fonts');
+
+/**
+ * A shipped font file, with 16 zero bytes appended. In the IBM Plex Mono files the space glyph is empty
+ * and its glyph data would start exactly at the end of the file (the glyf table comes last); the font
+ * reader under pdfkit reads a glyph header there and fails. The padding reads as an empty header; the
+ * table directory is unchanged, so nothing else in the font moves.
+ */
+const fontCache = new Map<string, Buffer>();
+function fontFile(name: string): Buffer {
+  let data = fontCache.get(name);
+  if (!data) {
+    data = Buffer.concat([readFileSync(join(FONTS, name)), Buffer.alloc(16)]);
+    fontCache.set(name, data);
+  }
+  return data;
+}
 
 const C = {
   ink: '#1D2433',
@@ -219,7 +237,7 @@ function table(w: Writer, cols: Col[], rows: { cells: string[]; better?: number[
 
 /** One envelope chart: shaded bands (widest underneath), the observed values as a line with marked points. */
 export function drawEnvelope(doc: Doc, stat: Pick<ReportStatisticJson, 'statistic' | 'components' | 'observed' | 'mean' | 'sd' | 'bands'>, box: { x: number; y: number; w: number; h: number }): void {
-  const series = plotSeries({ ...stat, scale: stat.statistic === 'triad_census' || stat.statistic === 'dyad_census' ? 'standardised' : 'counts' });
+  const series = plotSeries({ ...stat, scale: chartScaleOf(stat.statistic) });
   const axisW = 34;
   const labelH = 14;
   const px = box.x + axisW;
@@ -331,7 +349,7 @@ function statisticBlock(w: Writer, report: ReportJson, s: ReportStatisticJson): 
   const y = doc.y;
   drawEnvelope(doc, s, { x: w.left, y, w: w.width, h: 150 });
   doc.y = y + 154;
-  legend(w, s.statistic === 'triad_census' || s.statistic === 'dyad_census' ? 'standardised' : 'counts', s.bands.map((b) => b.coverage));
+  legend(w, chartScaleOf(s.statistic), s.bands.map((b) => b.coverage));
   doc.y += 4;
   const words = pValueWords(s.pValue);
   w.text(`p = ${formatPValue(s.pValue)} (Mahalanobis distance ${num(s.distance, 2)}, ${s.chains} chains): ${words.sentence}`, { font: 'bold', size: 9.5, gap: 2 });
@@ -358,6 +376,8 @@ function statisticBlock(w: Writer, report: ReportJson, s: ReportStatisticJson): 
 }
 
 function comparisonSection(w: Writer, cmp: CompareResponse): void {
+  // Keep the heading with the start of its first table.
+  w.need(220);
   w.heading('Comparison of models');
   w.text(
     'Each column is a candidate model with its simulation batch. A check marks the better value in a row: for an estimate, the smaller convergence t-ratio in absolute value; for a statistic, the higher p-value.',
@@ -405,10 +425,10 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
       Creator: `Wavefit ${report.software.wavefit}`,
     },
   });
-  doc.registerFont('text', join(FONTS, 'AtkinsonHyperlegible_400Regular.ttf'));
-  doc.registerFont('bold', join(FONTS, 'AtkinsonHyperlegible_700Bold.ttf'));
-  doc.registerFont('mono', join(FONTS, 'IBMPlexMono_400Regular.ttf'));
-  doc.registerFont('monoMedium', join(FONTS, 'IBMPlexMono_500Medium.ttf'));
+  doc.registerFont('text', fontFile('AtkinsonHyperlegible_400Regular.ttf'));
+  doc.registerFont('bold', fontFile('AtkinsonHyperlegible_700Bold.ttf'));
+  doc.registerFont('mono', fontFile('IBMPlexMono_400Regular.ttf'));
+  doc.registerFont('monoMedium', fontFile('IBMPlexMono_500Medium.ttf'));
   const chunks: Buffer[] = [];
   doc.on('data', (c: Buffer) => chunks.push(c));
   const done = new Promise<Buffer>((ok, fail) => {
@@ -508,6 +528,7 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
 
   if (report.comparison) comparisonSection(w, report.comparison);
 
+  w.need(260);
   w.heading('Reproducibility');
   const sw = report.software;
   table(
@@ -526,9 +547,16 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
       { cells: ['Finished', report.batch.finishedAt ? dateTime(report.batch.finishedAt) : '—'] },
       { cells: ['Wavefit', sw.wavefit] },
       { cells: ['Node.js', sw.node] },
-      ...Object.entries(sw.packages).map(([k, v]) => ({ cells: [k, v] })),
     ],
   );
+  w.text('Installed packages that compute, store and draw these numbers:', { size: 9, colour: C.muted, gap: 2 });
+  w.text(
+    Object.entries(sw.packages)
+      .map(([k, v]) => `${k} ${v}`)
+      .join(' · '),
+    { font: 'mono', size: 8.5, gap: 4 },
+  );
+  w.text('Running the same batch seed with the same versions reproduces every simulated network, and so every number in this report.', { size: 9, colour: C.muted });
 
   // Footers with page numbers.
   const range = doc.bufferedPageRange();

@@ -23,6 +23,7 @@ import { preferencesOf, updatePreferences } from '../notify/preferences';
 import type { RouteDeps } from '../routes/deps';
 import { compareItems } from './compare';
 import { GofCache } from './gofData';
+import { LayoutCache } from './layout';
 import {
   addComment,
   boardOf,
@@ -72,6 +73,7 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
   const { dataSource, auth } = deps;
   const router = Router() as ReviewRouter;
   const gof = new GofCache();
+  const layouts = new LayoutCache();
   const notifier = createNotifier(deps);
   router.notifier = notifier;
   try {
@@ -95,6 +97,15 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
     checkCard(batch, card.statistic, card.period);
     requireDone(batch);
     res.json(gof.one(dataSource, batch, card.statistic, card.period));
+  }));
+
+  router.get(`${B}/consensus/layout`, ...member('read'), guarded(async (req, res) => {
+    const batch = batchOf(req);
+    requireDone(batch);
+    const raw = req.query.period;
+    const period = raw === undefined || raw === '' ? batch.summary.periods[0] : Number(raw);
+    if (!Number.isInteger(period) || period < 1) throw badRequest('The period is a whole number from 1.');
+    res.json(await layouts.get(dataSource, batch, period));
   }));
 
   router.post(`${B}/verdicts`, ...member('review'), validate(verdictBodySchema), guarded(async (req, res) => {

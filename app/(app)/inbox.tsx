@@ -1,0 +1,3 @@
+import { InboxScreen } from '../../features/board/InboxScreen';
+
+export default InboxScreen;

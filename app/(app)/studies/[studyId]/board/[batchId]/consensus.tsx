@@ -1,0 +1,3 @@
+import { ConsensusScreen } from '../../../../../../features/consensus/ConsensusScreen';
+
+export default ConsensusScreen;

@@ -1,0 +1,3 @@
+import { BoardScreen } from '../../../../../../features/board/BoardScreen';
+
+export default BoardScreen;

@@ -1,0 +1,3 @@
+import { BoardIndexScreen } from '../../../../../features/board/BoardIndexScreen';
+
+export default BoardIndexScreen;

@@ -1,0 +1,3 @@
+import { CompareScreen } from '../../../../features/compare/CompareScreen';
+
+export default CompareScreen;

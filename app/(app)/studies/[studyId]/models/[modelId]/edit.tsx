@@ -1,0 +1,3 @@
+import { ModelFormScreen } from '../../../../../../features/models/ModelFormScreen';
+
+export default ModelFormScreen;

@@ -1,0 +1,3 @@
+import { FitScreen } from '../../../../../../../features/models/FitScreen';
+
+export default FitScreen;

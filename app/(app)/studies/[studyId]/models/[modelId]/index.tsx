@@ -1,0 +1,3 @@
+import { ModelScreen } from '../../../../../../features/models/ModelScreen';
+
+export default ModelScreen;

@@ -1,0 +1,3 @@
+import { ModelListScreen } from '../../../../../features/models/ModelListScreen';
+
+export default ModelListScreen;

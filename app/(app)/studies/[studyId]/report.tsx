@@ -1,0 +1,3 @@
+import { ReportScreen } from '../../../../features/report/ReportScreen';
+
+export default ReportScreen;

@@ -1,0 +1,177 @@
+/**
+ * Two to four candidate models side by side: each parameter's estimate with its standard error and
+ * convergence t-ratio, each statistic's p-value with the team's verdict, and the verdict counts. The
+ * better value per row carries an icon and the word "better" (lower |t| for estimates, higher p for
+ * statistics). A table on a wide screen; on a phone the same rows stack as cards.
+ */
+import { useLocalSearchParams, useRouter } from 'expo-router';
+import { View } from 'react-native';
+import { formatPValue, MAX_COMPARE, VERDICT_WORDS, type CompareColumn, type CompareEstimateRow, type ComparePRow } from '../../shared/review';
+import { Checkbox } from '../batches/Checkbox';
+import { useBatches } from '../batches/queries';
+import { parseIds, useCompare } from '../board/queries';
+import { verdictLook } from '../board/verdictWords';
+import { parseStudyId, useStudy } from '../studies/queries';
+import { StudyNotFound } from '../studies/StudyNotFound';
+import { Banner } from '../ui/Banner';
+import { Button } from '../ui/Button';
+import { Card } from '../ui/Card';
+import { Icon } from '../ui/icons';
+import { Loading, LoadError } from '../ui/Loading';
+import { Screen, Section } from '../ui/Screen';
+import { Table, type Column } from '../ui/Table';
+import { Text } from '../ui/Text';
+import { TextLink } from '../ui/TextLink';
+import { colors } from '../ui/theme';
+import { space } from '../ui/tokens';
+
+const num = (x: number | null | undefined, d = 3) => (x === null || x === undefined ? '—' : x.toFixed(d));
+
+function Better() {
+  return (
+    <View style={{ flexDirection: 'row', alignItems: 'center', gap: 2 }}>
+      <Icon name="pass" size={14} color={colors.pass} />
+      <Text variant="caption" style={{ color: colors.pass, fontWeight: '700' }}>
+        better
+      </Text>
+    </View>
+  );
+}
+
+const columnTitle = (c: CompareColumn) => `${c.modelName ?? c.label}${c.batchId ? ` · batch ${c.batchId}` : ` · fit ${c.fitId}`}`;
+
+export function CompareScreen() {
+  const params = useLocalSearchParams<{ studyId: string; batches?: string }>();
+  const studyId = parseStudyId(params.studyId);
+  const chosen = parseIds(params.batches);
+  const router = useRouter();
+  const study = useStudy(studyId);
+  const batches = useBatches(studyId);
+  const cmp = useCompare(studyId ?? 0, chosen);
+  if (studyId === null || study.error?.status === 404) return <StudyNotFound />;
+  const done = (batches.data?.batches ?? []).filter((b) => b.state === 'done');
+  const choose = (id: number, on: boolean) => {
+    const next = on ? [...chosen, id] : chosen.filter((x) => x !== id);
+    router.setParams({ batches: next.join(',') });
+  };
+  const data = cmp.data;
+
+  const estimateColumns: Column<CompareEstimateRow>[] = [
+    { key: 'label', title: 'Parameter', flex: 1.6, render: (r) => <Text variant="bodyStrong">{r.label}</Text> },
+    ...(data?.columns ?? []).map((c, i) => ({
+      key: c.key,
+      title: columnTitle(c),
+      flex: 1.3,
+      numeric: true,
+      render: (r: CompareEstimateRow) => {
+        const cell = r.cells[i];
+        if (!cell) return <Text variant="figure">—</Text>;
+        return (
+          <View style={{ alignItems: 'flex-end', gap: 2 }} accessibilityLabel={`${num(cell.value)}${cell.se !== null ? `, standard error ${num(cell.se)}` : ''}${cell.convergenceT !== null ? `, t ${num(cell.convergenceT, 2)}` : ''}${r.better === i ? ', better' : ''}`}>
+            <Text variant="figure" style={r.better === i ? { fontWeight: '700' } : undefined}>{`${num(cell.value)}${cell.se !== null ? ` (${num(cell.se)})` : ''}`}</Text>
+            {cell.convergenceT !== null ? <Text variant="caption">{`t = ${num(cell.convergenceT, 2)}`}</Text> : null}
+            {r.better === i ? <Better /> : null}
+          </View>
+        );
+      },
+    })),
+  ];
+
+  const pColumns: Column<ComparePRow>[] = [
+    { key: 'label', title: 'Statistic', flex: 1.6, render: (r) => <Text variant="bodyStrong">{`${r.label}, period ${r.period}`}</Text> },
+    ...(data?.columns ?? []).map((c, i) => ({
+      key: c.key,
+      title: columnTitle(c),
+      flex: 1.3,
+      numeric: true,
+      render: (r: ComparePRow) => {
+        const cell = r.cells[i];
+        if (!cell) return <Text variant="figure">—</Text>;
+        const look = cell.verdict ? verdictLook[cell.verdict] : null;
+        return (
+          <View style={{ alignItems: 'flex-end', gap: 2 }} accessibilityLabel={`p ${formatPValue(cell.pValue)}, verdict ${cell.verdict ? VERDICT_WORDS[cell.verdict] : 'awaiting review'}${r.better === i ? ', better' : ''}`}>
+            <Text variant="figure" style={r.better === i ? { fontWeight: '700' } : undefined}>{`p = ${formatPValue(cell.pValue)}`}</Text>
+            {look ? (
+              <View style={{ flexDirection: 'row', alignItems: 'center', gap: 2 }}>
+                <Icon name={look.icon} size={14} color={look.fg} />
+                <Text variant="caption" style={{ color: look.fg }}>
+                  {look.word}
+                </Text>
+              </View>
+            ) : (
+              <Text variant="caption">awaiting review</Text>
+            )}
+            {r.better === i ? <Better /> : null}
+          </View>
+        );
+      },
+    })),
+  ];
+
+  return (
+    <Screen
+      overline="Compare models"
+      title="Compare models"
+      subtitle={study.data?.study.name}
+      above={<TextLink href={`/studies/${studyId}/board`}>← Review board</TextLink>}
+      actions={
+        data && data.columns[0]?.batchId ? (
+          <Button
+            label="Fit report with this comparison"
+            variant="secondary"
+            href={`/studies/${studyId}/report?batch=${data.columns[0].batchId}&compare=${data.columns.slice(1).filter((c) => c.batchId).map((c) => c.batchId).join(',')}`}
+          />
+        ) : undefined
+      }
+    >
+      <Card title="Choose two to four batches" subtitle="Each batch simulates one fitted model.">
+        {batches.isLoading ? <Loading label="Loading batches…" /> : null}
+        <View role="group" accessibilityLabel="Batches to compare">
+          {done.map((b) => (
+            <Checkbox
+              key={b.id}
+              label={b.label}
+              hint={`${b.chains} chains · batch ${b.id}`}
+              checked={chosen.includes(b.id)}
+              disabled={!chosen.includes(b.id) && chosen.length >= MAX_COMPARE}
+              onChange={(on) => choose(b.id, on)}
+            />
+          ))}
+        </View>
+        {chosen.length < 2 ? <Text variant="muted">Choose at least two.</Text> : null}
+      </Card>
+      {cmp.error ? <LoadError message={cmp.error.message} onRetry={() => void cmp.mutate()} /> : null}
+      {cmp.isLoading ? <Loading label="Comparing…" /> : null}
+      {data ? (
+        <>
+          <Section title="Models">
+            <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s2 }}>
+              {data.columns.map((c, i) => (
+                <Card key={c.key} title={columnTitle(c)} subtitle={c.label} style={{ flexBasis: 240, flexGrow: 1 }}>
+                  <Text variant="small">{c.chains ? `${c.chains} chains` : 'No batch'}</Text>
+                  <Text variant="small">
+                    {c.converged === null ? 'Values entered by hand (no convergence check).' : `${c.converged ? 'Converged' : 'Not converged'}: largest |t| ${num(c.maxAbsT)}, overall ratio ${num(c.tauMax)}`}
+                  </Text>
+                  {data.verdicts[i] ? (
+                    <Text variant="small">{`Verdicts: ${data.verdicts[i]!.pass} pass, ${data.verdicts[i]!.fail} fail, ${data.verdicts[i]!.unsure} unsure, ${data.verdicts[i]!.awaiting} awaiting`}</Text>
+                  ) : null}
+                </Card>
+              ))}
+            </View>
+          </Section>
+          {data.notes.map((n) => (
+            <Banner key={n} tone="info">
+              {n}
+            </Banner>
+          ))}
+          <Section title="Estimates" description="Estimate (standard error) and the convergence t-ratio; the smaller |t| is marked better.">
+            <Table label="Estimates by model" columns={estimateColumns} rows={data.estimates} rowKey={(r) => r.key} testID="compare-estimates" />
+          </Section>
+          <Section title="Goodness of fit" description="Mahalanobis p-value and the team's verdict; the higher p-value is marked better.">
+            <Table label="p-values by model" columns={pColumns} rows={data.pValues} rowKey={(r) => `${r.statistic}-${r.period}`} testID="compare-pvalues" />
+          </Section>
+        </>
+      ) : null}
+    </Screen>
+  );
+}

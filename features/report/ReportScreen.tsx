@@ -1,0 +1,178 @@
+/**
+ * The fit report of a batch: where its review stands (verdict counts, sign-offs, whether anything
+ * changed since), the lead's sign-off (who and when are recorded), and the exports: the PDF built on
+ * the server, and the numbers as CSV and JSON.
+ */
+import { useLocalSearchParams, useRouter } from 'expo-router';
+import { useState } from 'react';
+import { Platform, Pressable, View } from 'react-native';
+import { getApiBase, messageOf } from '../api/client';
+import { useBatches } from '../batches/queries';
+import { parseId, parseIds, useBoardMutations, useReportStatus } from '../board/queries';
+import { SummaryStrip } from '../board/SummaryStrip';
+import { parseStudyId, useStudy } from '../studies/queries';
+import { StudyNotFound } from '../studies/StudyNotFound';
+import { Banner } from '../ui/Banner';
+import { Button, ButtonRow } from '../ui/Button';
+import { Card } from '../ui/Card';
+import { EmptyState } from '../ui/EmptyState';
+import { formatDate } from '../ui/format';
+import { Icon, type IconName } from '../ui/icons';
+import { Loading, LoadError } from '../ui/Loading';
+import { Screen, Section } from '../ui/Screen';
+import { SegmentedControl } from '../ui/SegmentedControl';
+import { Text } from '../ui/Text';
+import { TextField } from '../ui/TextField';
+import { TextLink } from '../ui/TextLink';
+import { colors } from '../ui/theme';
+import { fonts, radius, space, touchTarget } from '../ui/tokens';
+import { useInteraction } from '../ui/useInteraction';
+
+const time = (iso: string) => `${formatDate(iso)}, ${new Date(iso).toISOString().slice(11, 16)} UTC`;
+
+/** A download link drawn as a button (an <a download> on the web, so the browser saves the file). */
+function DownloadLink({ href, label, accessibilityLabel, icon = 'outbox' }: { href: string; label: string; accessibilityLabel: string; icon?: IconName }) {
+  const { hovered, focused, handlers } = useInteraction();
+  const webProps = Platform.OS === 'web' ? ({ href, hrefAttrs: { download: '' } } as object) : {};
+  return (
+    <Pressable
+      {...handlers}
+      {...webProps}
+      accessibilityRole="link"
+      accessibilityLabel={accessibilityLabel}
+      onPress={Platform.OS === 'web' ? undefined : () => undefined}
+      style={{
+        minHeight: touchTarget,
+        paddingHorizontal: space.s2,
+        flexDirection: 'row',
+        alignItems: 'center',
+        gap: space.s1,
+        borderRadius: radius.sm,
+        borderWidth: 1,
+        borderColor: colors.ruleStrong,
+        backgroundColor: hovered ? colors.surfaceSunk : colors.surface,
+        ...(focused ? { outlineColor: colors.focus, outlineWidth: 2, outlineStyle: 'solid' as const, outlineOffset: 2 } : null),
+      }}
+    >
+      <Icon name={icon} size={18} color={colors.accent} />
+      <Text style={{ color: colors.accent, fontFamily: fonts.textBold }}>{label}</Text>
+    </Pressable>
+  );
+}
+
+export function ReportScreen() {
+  const params = useLocalSearchParams<{ studyId: string; batch?: string; compare?: string }>();
+  const studyId = parseStudyId(params.studyId);
+  const router = useRouter();
+  const study = useStudy(studyId);
+  const batches = useBatches(studyId);
+  const done = (batches.data?.batches ?? []).filter((b) => b.state === 'done');
+  const batchId = parseId(params.batch) ?? done[0]?.id ?? null;
+  const compare = parseIds(params.compare).filter((id) => id !== batchId);
+  const status = useReportStatus(studyId ?? 0, batchId);
+  const mutations = useBoardMutations(studyId ?? 0, batchId ?? 0);
+  const [note, setNote] = useState('');
+  const [confirming, setConfirming] = useState(false);
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const [signed, setSigned] = useState<string | null>(null);
+
+  if (studyId === null || study.error?.status === 404) return <StudyNotFound />;
+  const s = status.data;
+  const api = `${getApiBase()}/studies/${studyId}/batches/${batchId}`;
+  const compareQuery = compare.length ? `compare=${compare.join(',')}&` : '';
+  const batchName = s?.batchLabel ?? 'this batch';
+
+  const sign = async () => {
+    setBusy(true);
+    setError(null);
+    try {
+      const signoff = await mutations.signOff(note.trim());
+      setSigned(`Signed off by ${signoff.signedBy?.name ?? 'you'} on ${time(signoff.signedAt)}. The team has been told by e-mail.`);
+      setNote('');
+      setConfirming(false);
+    } catch (e) {
+      setError(messageOf(e));
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  return (
+    <Screen overline="Fit report" title="Fit report" subtitle={study.data?.study.name} above={<TextLink href={`/studies/${studyId}/board`}>← Review board</TextLink>}>
+      {batches.error ? <LoadError message={batches.error.message} onRetry={() => void batches.mutate()} /> : null}
+      {batches.isLoading ? <Loading label="Loading batches…" /> : null}
+      {batches.data && done.length === 0 ? <EmptyState title="No finished batch yet" message="A report is built from a finished, reviewed batch." /> : null}
+      {done.length > 1 ? (
+        <SegmentedControl
+          label="Report on"
+          options={done.map((b) => ({ value: String(b.id), label: `Batch ${b.id}`, description: b.label }))}
+          value={batchId !== null ? String(batchId) : null}
+          onChange={(v) => router.setParams({ batch: v, compare: compare.filter((c) => String(c) !== v).join(',') })}
+        />
+      ) : null}
+      {status.error ? <LoadError message={status.error.message} onRetry={() => void status.mutate()} /> : null}
+      {s ? (
+        <>
+          <Section title={s.batchLabel} description="Where the review stands.">
+            <SummaryStrip counts={s.counts} />
+            {s.counts.awaiting > 0 ? (
+              <Banner tone="caution">{`${s.counts.awaiting} of ${s.counts.total} statistics still await a verdict; the report says so.`}</Banner>
+            ) : null}
+            {s.changedSinceSignoff ? <Banner tone="caution">Verdicts or comments changed after the last sign-off.</Banner> : null}
+            {compare.length ? <Text variant="small">{`The report includes the comparison with batch${compare.length > 1 ? 'es' : ''} ${compare.join(', ')}.`}</Text> : null}
+          </Section>
+
+          <Section title="Sign-off">
+            {s.signoffs.length === 0 ? <Text variant="muted">Not signed off yet.</Text> : null}
+            <View role="list" accessibilityLabel="Sign-offs" style={{ gap: space.s1 }}>
+              {s.signoffs.map((so) => (
+                <View role="listitem" key={so.id} style={{ flexDirection: 'row', gap: space.s1, alignItems: 'flex-start' }}>
+                  <Icon name="pass" size={20} color={colors.pass} />
+                  <View style={{ flex: 1, gap: 2 }}>
+                    <Text variant="bodyStrong">{`Signed off by ${so.signedBy?.name ?? 'a former member'} on ${time(so.signedAt)}`}</Text>
+                    <Text variant="caption">{`At signing: ${so.counts.pass} pass, ${so.counts.fail} fail, ${so.counts.unsure} unsure, ${so.counts.awaiting} awaiting`}</Text>
+                    {so.note ? <Text variant="small">{`“${so.note}”`}</Text> : null}
+                  </View>
+                </View>
+              ))}
+            </View>
+            {signed ? <Banner tone="success">{signed}</Banner> : null}
+            {s.canSign ? (
+              <Card>
+                <TextField label="Note with the sign-off (optional)" value={note} onChangeText={setNote} multiline maxLength={2000} />
+                {error ? <Banner tone="error">{error}</Banner> : null}
+                {confirming ? (
+                  <Banner tone="caution" word="Sign off?">
+                    {`Your name and the time are recorded with the report of "${batchName}", and the team is told by e-mail.`}
+                  </Banner>
+                ) : null}
+                <ButtonRow>
+                  {confirming ? (
+                    <>
+                      <Button label="Yes, sign off" onPress={() => void sign()} loading={busy} icon="pass" />
+                      <Button label="Not yet" variant="secondary" onPress={() => setConfirming(false)} />
+                    </>
+                  ) : (
+                    <Button label="Sign off the report" icon="pass" onPress={() => setConfirming(true)} />
+                  )}
+                </ButtonRow>
+              </Card>
+            ) : (
+              <Text variant="caption">Only the study lead signs off the report.</Text>
+            )}
+          </Section>
+
+          <Section title="Export" description="The PDF has every chart with its verdicts and comments, the estimates, the comparison, the sign-off, and the seeds and versions to reproduce it.">
+            <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s1 }}>
+              <DownloadLink href={`${api}/report.pdf?${compareQuery}download=1`} label="Download PDF" accessibilityLabel={`Download the PDF report of ${batchName}`} />
+              <DownloadLink href={`${api}/report.csv?table=gof`} label="CSV: statistics" accessibilityLabel="Download the statistics, p-values and verdicts as CSV" />
+              <DownloadLink href={`${api}/report.csv?table=estimates`} label="CSV: estimates" accessibilityLabel="Download the estimates as CSV" />
+              <DownloadLink href={`${api}/report.json?${compareQuery}`} label="JSON" accessibilityLabel="Download every number of the report as JSON" />
+            </View>
+          </Section>
+        </>
+      ) : null}
+    </Screen>
+  );
+}
