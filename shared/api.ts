@@ -81,6 +81,8 @@ export type ApiErrorCode =
   | 'payload_too_large'
   | 'rate_limited'
   | 'batch_not_ready'
+  | 'fit_not_running'
+  | 'verdict_conflict'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */

@@ -176,15 +176,19 @@ export interface EnvelopeBandDto {
 }
 
 export interface MahalanobisDto {
+  /** The observed vector's Mahalanobis distance, mean and covariance from all N + 1 vectors (the headline test). */
   distance: number;
-  /** (1 + #{d_s >= d_obs}) / (N + 1), mean and covariance from the simulated vectors (METHODS.md 5). */
+  /**
+   * The headline p-value (1 + #{d_s >= d_obs}) / (N + 1) (North, Curtis & Sham 2002), with mean and covariance
+   * from the simulated and the observed vectors together, which treats the observed network exactly like a
+   * simulated one, so the p-value is uniform when the model is right (see tests/gof/calibration.test.ts).
+   */
   pValue: number;
   /**
-   * The same with mean and covariance from the simulated and the observed vectors together, which treats
-   * the observed network exactly like a simulated one; shown beside pValue because the plain version
-   * rejects too often when some components are rare (see tests/gof/calibration.test.ts).
+   * The same with mean and covariance from the simulated vectors alone (METHODS.md 5; Lospinoso & Snijders
+   * 2019). Shown beside pValue: it rejects too often when some components are rare.
    */
-  pValuePooled: number;
+  pValueSimulatedOnly: number;
   chains: number;
   /** Effective dimension: eigenvalues kept in the pseudo-inverse. */
   componentsKept: number;
@@ -217,7 +221,7 @@ export interface GofSummaryRow {
   statistic: AuxStatisticId;
   label: string;
   pValue: number;
-  pValuePooled: number;
+  pValueSimulatedOnly: number;
   distance: number;
   componentsKept: number;
   outOfSupport: number;

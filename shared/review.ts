@@ -317,7 +317,7 @@ export interface ReportStatisticJson {
   sd: number[];
   bands: { coverage: number; lower: number[]; upper: number[] }[];
   pValue: number;
-  pValuePooled: number;
+  pValueSimulatedOnly: number;
   distance: number;
   chains: number;
   reading: string;
@@ -414,7 +414,7 @@ export interface EnvelopeChartDto {
   sd: number[];
   bands: { coverage: number; lower: number[]; upper: number[]; outside: string[] }[];
   pValue: number;
-  pValuePooled: number;
+  pValueSimulatedOnly: number;
   distance: number;
   chains: number;
   outOfSupport: { component: string; observed: number; simulated: number }[];

@@ -86,8 +86,8 @@ function StatisticCard({ studyId, batch, row, period }: { studyId: number; batch
           <Text variant="caption">p-value (Mahalanobis distance)</Text>
         </View>
         <View style={{ gap: 2 }}>
-          <Text variant="figureLarge">{formatP(row.pValuePooled)}</Text>
-          <Text variant="caption">p-value, observed counted in</Text>
+          <Text variant="figureLarge">{formatP(row.pValueSimulatedOnly)}</Text>
+          <Text variant="caption">p-value, simulated networks alone</Text>
         </View>
         <View style={{ gap: 2 }}>
           <Text variant="figureLarge">{row.componentsKept}</Text>

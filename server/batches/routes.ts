@@ -46,7 +46,7 @@ class MatrixCache {
 
 function toApiError(error: unknown): unknown {
   if (error instanceof BatchInputError) {
-    const code = (error.status === 409 ? 'batch_not_ready' : error.code) as ApiErrorCode;
+    const code = (error.status === 409 ? 'batch_not_ready' : error.code);
     return new ApiError(error.status, code, error.message, error.details);
   }
   return error;

@@ -34,7 +34,7 @@ import {
 
 function toApiError(error: unknown): unknown {
   if (error instanceof ModelInputError) {
-    const code = (error.code === 'conflict' ? 'fit_not_running' : error.code) as ApiErrorCode;
+    const code = (error.code === 'conflict' ? 'fit_not_running' : error.code);
     return new ApiError(error.status, code, error.message, error.details);
   }
   return error;

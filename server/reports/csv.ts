@@ -17,7 +17,7 @@ export function gofCsv(report: ReportJson): string {
   const coverages = report.statistics[0]?.bands.map((b) => b.coverage).sort((a, b) => a - b) ?? [];
   const bandCols = coverages.flatMap((c) => [`band${Math.round(c * 100)}_lower`, `band${Math.round(c * 100)}_upper`]);
   const rows = [
-    line(['batch', 'statistic', 'period', 'component', 'observed', 'simulated_mean', 'simulated_sd', ...bandCols, 'p_value', 'p_value_pooled', 'mahalanobis_distance', 'chains', 'verdict', 'verdict_note', 'verdict_by', 'verdict_at']),
+    line(['batch', 'statistic', 'period', 'component', 'observed', 'simulated_mean', 'simulated_sd', ...bandCols, 'p_value', 'p_value_simulated_only', 'mahalanobis_distance', 'chains', 'verdict', 'verdict_note', 'verdict_by', 'verdict_at']),
   ];
   for (const s of report.statistics) {
     s.components.forEach((component, k) => {
@@ -36,7 +36,7 @@ export function gofCsv(report: ReportJson): string {
           s.sd[k],
           ...bands,
           s.pValue,
-          s.pValuePooled,
+          s.pValueSimulatedOnly,
           s.distance,
           s.chains,
           s.verdict?.verdict ?? '',

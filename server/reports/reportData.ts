@@ -68,7 +68,7 @@ export function buildReport(
     sd: c.sd,
     bands: c.bands.map((b) => ({ coverage: b.coverage, lower: b.lower, upper: b.upper })),
     pValue: c.pValue,
-    pValuePooled: c.pValuePooled,
+    pValueSimulatedOnly: c.pValueSimulatedOnly,
     distance: c.distance,
     chains: c.chains,
     reading: c.reading,

@@ -51,7 +51,7 @@ export class GofCache {
           sd: columnSd(statisticSample(matrix, offset, layout.components.length)),
           bands: g.bands.map((b) => ({ coverage: b.coverage, lower: b.lower, upper: b.upper, outside: b.outside })),
           pValue: g.test.pValue,
-          pValuePooled: g.test.pValuePooled,
+          pValueSimulatedOnly: g.test.pValueSimulatedOnly,
           distance: g.test.distance,
           chains: g.test.chains,
           outOfSupport: g.test.outOfSupport,

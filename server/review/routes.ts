@@ -42,7 +42,7 @@ import {
 } from './service';
 
 export function toApiError(error: unknown): unknown {
-  if (error instanceof ReviewError) return new ApiError(error.status, error.code as ApiErrorCode, error.message, error.details);
+  if (error instanceof ReviewError) return new ApiError(error.status, error.code, error.message, error.details);
   return error;
 }
 

@@ -5,6 +5,7 @@
  * each (server/jobs/db.ts explains why), so a verdict and its history row commit together or not at all.
  */
 import type { DataSource } from 'typeorm';
+import type { ApiErrorCode } from '../../shared/api';
 import type { AuxStatisticId } from '../../shared/auxStatistics';
 import {
   countVerdicts,
@@ -30,7 +31,7 @@ import { recordEvent, wakeAfterCommit, type ReportSignedPayload, type ReviewRequ
 export class ReviewError extends Error {
   constructor(
     readonly status: number,
-    readonly code: string,
+    readonly code: ApiErrorCode,
     message: string,
     readonly details?: unknown,
   ) {

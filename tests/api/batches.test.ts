@@ -144,7 +144,11 @@ describe('batches API', () => {
       join(__dirname, '../gof/reference_gof.py'),
       {
         quantiles: observed.map((_, k) => ({ values: rows.map((r) => r[k]), probs: [0.25, 0.75, 0.05, 0.95] })),
-        mahalanobis: [{ sim: rows, obs: observed, tol: 1e-10 }],
+        // Headline: observed counted in the mean and covariance ("pooled"); beside it the simulated-only form.
+        mahalanobis: [
+          { sim: rows, obs: observed, tol: 1e-10, reference: 'pooled' },
+          { sim: rows, obs: observed, tol: 1e-10 },
+        ],
       },
     );
     observed.forEach((_, k) => {
@@ -156,6 +160,7 @@ describe('batches API', () => {
     const m = ref.mahalanobis[0];
     expect(Math.abs(gof.test.distance - m.d_obs)).toBeLessThan(1e-6 * Math.max(1, m.d_obs));
     expect(gof.test.pValue).toBeCloseTo(m.p, 12);
+    expect(gof.test.pValueSimulatedOnly).toBeCloseTo(ref.mahalanobis[1].p, 12);
     expect(gof.test.componentsKept).toBe(m.rank);
     // The census components sum to a constant, so at most 15 directions can vary.
     expect(gof.test.componentsKept).toBeLessThanOrEqual(15);
