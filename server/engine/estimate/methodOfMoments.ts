@@ -348,7 +348,17 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     log(`Continuing from ${fmtVec(theta)} with the derivative matrix of the earlier fit; Phase 1 skipped.`);
   } else {
     log(`Phase 1: ${n1} runs at the starting values ${fmtVec(theta)}, derivatives by finite differences.`);
-    const ph1 = sampleWithDerivative(theta, 1, n1);
+    let runs1 = n1;
+    let ph1 = sampleWithDerivative(theta, 1, runs1);
+    // With common random numbers a small perturbation may change no choice at all in a short Phase 1,
+    // leaving a zero (or, by noise, negative) self-derivative. Lengthen Phase 1 (the same streams plus
+    // new ones, so it stays reproducible) up to 8 times before giving up.
+    const unresolved = () => ph1.d.some((row, k) => !(row[k] > 0));
+    while (unresolved() && runs1 < 8 * n1) {
+      runs1 *= 2;
+      log(`Phase 1: a self-derivative was not positive; lengthening Phase 1 to ${runs1} runs.`);
+      ph1 = sampleWithDerivative(theta, 1, runs1);
+    }
     const m1 = ph1.zs[0].map((_, k) => ph1.zs.reduce((s, z) => s + z[k], 0) / ph1.zs.length);
     mean1 = m1;
     d1 = ph1.d;
