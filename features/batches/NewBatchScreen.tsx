@@ -21,7 +21,7 @@ import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
 import { TextLink } from '../ui/TextLink';
 import { space } from '../ui/tokens';
-import { Checkbox } from './Checkbox';
+import { Checkbox } from '../ui/Checkbox';
 import { useBatchMutations, useStudyData } from './queries';
 
 type Source = 'fit' | 'model';

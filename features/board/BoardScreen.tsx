@@ -9,7 +9,7 @@ import { View } from 'react-native';
 import { can } from '../../shared/api';
 import { messageOf } from '../api/client';
 import { useSession } from '../auth/session';
-import { Checkbox } from '../batches/Checkbox';
+import { Checkbox } from '../ui/Checkbox';
 import { useBatch, useStudyData } from '../batches/queries';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';

@@ -3,7 +3,7 @@ import { useState } from 'react';
 import { View } from 'react-native';
 import type { NotificationPreferences as Prefs } from '../../shared/review';
 import { messageOf } from '../api/client';
-import { Checkbox } from '../batches/Checkbox';
+import { Checkbox } from '../ui/Checkbox';
 import { Banner } from '../ui/Banner';
 import { Card } from '../ui/Card';
 import { Loading, LoadError } from '../ui/Loading';

@@ -7,7 +7,7 @@
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { View } from 'react-native';
 import { formatPValue, MAX_COMPARE, VERDICT_WORDS, type CompareColumn, type CompareEstimateRow, type ComparePRow } from '../../shared/review';
-import { Checkbox } from '../batches/Checkbox';
+import { Checkbox } from '../ui/Checkbox';
 import { useBatches } from '../batches/queries';
 import { parseIds, useCompare } from '../board/queries';
 import { verdictLook } from '../board/verdictWords';

@@ -22,7 +22,7 @@ import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
 import { space } from '../ui/tokens';
 import { useBreakpoint } from '../ui/useBreakpoint';
-import { Choice } from './Choice';
+import { Checkbox } from '../ui/Checkbox';
 import { parseId, useModel, useModelMutations, useStudyData } from './queries';
 
 type Mode = 'estimate' | 'fix';
@@ -335,9 +335,9 @@ export function ModelFormScreen() {
               const key = `rate:${r.period}`;
               return (
                 <View key={key} style={{ gap: space.s1, paddingBottom: space.s1, borderBottomWidth: 1, borderBottomColor: colors.rule }}>
-                  <Choice
+                  <Checkbox
                     label={`Period ${r.period}: ${waves[r.period - 1].label} to ${waves[r.period].label}`}
-                    explanation={
+                    hint={
                       change
                         ? `${change.created} ties made, ${change.dissolved} ended${change.jaccard != null ? `, ${Math.round(change.jaccard * 100)}% of ties kept` : ''}.${change.caution ? ` ${change.caution}` : ''}`
                         : undefined
@@ -388,9 +388,9 @@ export function ModelFormScreen() {
                   )}
                   {rows.map((row) => (
                     <View key={row.key} style={{ gap: space.s1, paddingLeft: needs === 'none' ? 0 : space.s2 }}>
-                      <Choice
+                      <Checkbox
                         label={needs === 'none' ? info.label : `with ${row.covariate}`}
-                        explanation={needs === 'none' ? info.explanation : undefined}
+                        hint={needs === 'none' ? info.explanation : undefined}
                         checked={row.included}
                         onChange={(included) => setEffect(row.key, { included })}
                         testID={`effect-${row.key}`}

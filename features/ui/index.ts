@@ -13,6 +13,7 @@ export { Badge, type BadgeTone } from './Badge';
 export { Banner, type BannerTone } from './Banner';
 export { EmptyState } from './EmptyState';
 export { TextField } from './TextField';
+export { Checkbox } from './Checkbox';
 export { SegmentedControl, type SegmentOption } from './SegmentedControl';
 export { Table, type Column } from './Table';
 export { Screen, Section } from './Screen';

@@ -1,10 +1,16 @@
 import { Pressable, View } from 'react-native';
-import { Icon } from '../ui/icons';
-import { Text } from '../ui/Text';
-import { colors } from '../ui/theme';
-import { radius, space, touchTarget } from '../ui/tokens';
+import { Icon } from './icons';
+import { Text } from './Text';
+import { colors } from './theme';
+import { radius, space, touchTarget } from './tokens';
 
-/** A labelled checkbox with a 44 px touch target (role checkbox, aria-checked). */
+interface PressState {
+  pressed: boolean;
+  hovered?: boolean;
+  focused?: boolean;
+}
+
+/** A labelled checkbox with an optional hint underneath (role checkbox, aria-checked, 44 px target). */
 export function Checkbox({
   label,
   hint,
@@ -29,7 +35,20 @@ export function Checkbox({
       accessibilityLabel={hint ? `${label}. ${hint}` : label}
       disabled={disabled}
       onPress={() => onChange(!checked)}
-      style={{ flexDirection: 'row', alignItems: 'flex-start', gap: space.s1, minHeight: touchTarget, paddingVertical: 10, opacity: disabled ? 0.5 : 1 }}
+      style={(s) => [
+        {
+          flexDirection: 'row',
+          alignItems: 'flex-start',
+          gap: space.s1,
+          minHeight: touchTarget,
+          paddingVertical: 10,
+          paddingHorizontal: space.half,
+          borderRadius: radius.sm,
+          backgroundColor: (s as PressState).hovered && !disabled ? colors.surfaceSunk : 'transparent',
+          opacity: disabled ? 0.55 : 1,
+        },
+        (s as PressState).focused ? { outlineColor: colors.focus, outlineWidth: 2, outlineStyle: 'solid' as const, outlineOffset: 1 } : null,
+      ]}
     >
       <View
         style={{

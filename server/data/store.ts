@@ -1,0 +1,184 @@
+/**
+ * Storing and loading a study's data (actors, waves, covariates).
+ * - replaceStudyData: writes a parsed upload in one transaction, replacing what was there.
+ * - loadStudyData: what the estimator and the batch engine read (see README.md).
+ * - studyDataView / waveTies: the API responses.
+ */
+import type { DataSource, EntityManager } from 'typeorm';
+import type { StudyDataResponse, WaveTiesResponse } from '../../shared/data';
+import { ActorEntity } from '../db/entities/Actor';
+import { CovariateEntity, type Covariate } from '../db/entities/Covariate';
+import { StudyEntity } from '../db/entities/Study';
+import { WaveEntity, type Wave } from '../db/entities/Wave';
+import { conflict } from '../errors';
+import { TIE_MISSING, TIE_PRESENT, type ParsedStudyData } from './parse';
+import { DATA_REPLACE_GUARDS, type DataReplaceGuard } from './replaceGuards';
+import { compareWaves, summarizeCovariate, summarizeWave } from './summaries';
+
+/** Writes the data in one transaction; returns whether older data was replaced. Throws 409 data_in_use if a guard refuses. */
+export async function replaceStudyData(
+  dataSource: DataSource,
+  studyId: number,
+  data: ParsedStudyData,
+  guards: readonly DataReplaceGuard[] = DATA_REPLACE_GUARDS,
+): Promise<{ replaced: boolean }> {
+  return dataSource.transaction(async (manager: EntityManager) => {
+    const waves = manager.getRepository(WaveEntity);
+    const replaced = (await waves.countBy({ studyId })) > 0;
+    if (replaced) {
+      for (const guard of guards) {
+        const refusal = await guard(manager, studyId);
+        if (refusal) throw conflict('data_in_use', refusal);
+      }
+    }
+    await manager.getRepository(CovariateEntity).delete({ studyId });
+    await waves.delete({ studyId });
+    await manager.getRepository(ActorEntity).delete({ studyId });
+
+    const n = data.actors.length;
+    await manager.getRepository(ActorEntity).insert(data.actors.map((label, index) => ({ studyId, index, label })));
+    for (const [k, wave] of data.waves.entries()) {
+      await waves.insert({
+        studyId,
+        index: k + 1,
+        label: wave.label,
+        actorCount: n,
+        adjacency: Buffer.from(wave.adjacency.buffer, wave.adjacency.byteOffset, wave.adjacency.byteLength),
+        sourceFormat: data.format,
+      });
+    }
+    if (data.covariates.length) {
+      await manager.getRepository(CovariateEntity).insert(
+        data.covariates.map((c) => ({
+          studyId,
+          name: c.name,
+          kind: c.kind,
+          changing: c.changing,
+          values: c.values,
+          categories: c.categories,
+        })),
+      );
+    }
+    await manager.getRepository(StudyEntity).update({ id: studyId }, { updatedAt: new Date() });
+    return { replaced };
+  });
+}
+
+// ---------- loading for the engine ----------
+
+export interface LoadedCovariate {
+  kind: 'numeric' | 'categorical';
+  changing: boolean;
+  /** Sorted category labels (categorical); codes index into this list. */
+  categories: string[];
+  /**
+   * One array of n values per column (one column if constant, one per wave if changing), actor order
+   * as `actors`: numeric as Float64Array with NaN for missing; categorical as Int32Array of codes
+   * into `categories` with -1 for missing. These are the shapes server/engine's buildEffects takes.
+   */
+  values: Float64Array[] | Int32Array[];
+}
+
+export interface LoadedStudyData {
+  actors: string[];
+  waveLabels: string[];
+  /** One row-major n*n matrix per wave (sender row, receiver column): 0 no tie, 1 tie, 2 missing. */
+  waves: Uint8Array[];
+  covariates: Record<string, LoadedCovariate>;
+}
+
+function toEngineValues(c: Covariate): Float64Array[] | Int32Array[] {
+  if (c.kind === 'numeric') {
+    return c.values.map((column) => Float64Array.from(column, (v) => (typeof v === 'number' ? v : NaN)));
+  }
+  const code = new Map(c.categories.map((label, k) => [label, k]));
+  return c.values.map((column) => Int32Array.from(column, (v) => (v === null ? -1 : (code.get(String(v)) ?? -1))));
+}
+
+async function readRows(dataSource: DataSource, studyId: number) {
+  const [actors, waves, covariates] = await Promise.all([
+    dataSource.getRepository(ActorEntity).find({ where: { studyId }, order: { index: 'ASC' } }),
+    dataSource.getRepository(WaveEntity).find({ where: { studyId }, order: { index: 'ASC' } }),
+    dataSource.getRepository(CovariateEntity).find({ where: { studyId }, order: { name: 'ASC' } }),
+  ]);
+  return { actors, waves, covariates };
+}
+
+function adjacencyOf(wave: Wave): Uint8Array {
+  return new Uint8Array(wave.adjacency);
+}
+
+/**
+ * The study's data for computation. Throws when the study has no data (fewer than two waves).
+ * Cost: O(M n^2) to copy the waves.
+ */
+export async function loadStudyData(dataSource: DataSource, studyId: number): Promise<LoadedStudyData> {
+  const rows = await readRows(dataSource, studyId);
+  if (rows.waves.length < 2) throw new Error(`study-data: study ${studyId} has no uploaded waves`);
+  const n = rows.actors.length;
+  for (const w of rows.waves) {
+    if (w.adjacency.length !== n * n) throw new Error(`study-data: wave ${w.index} of study ${studyId} does not match its ${n} actors`);
+  }
+  const covariates: Record<string, LoadedCovariate> = {};
+  for (const c of rows.covariates) {
+    covariates[c.name] = { kind: c.kind, changing: Boolean(c.changing), categories: c.categories, values: toEngineValues(c) };
+  }
+  return {
+    actors: rows.actors.map((a) => a.label),
+    waveLabels: rows.waves.map((w) => w.label),
+    waves: rows.waves.map(adjacencyOf),
+    covariates,
+  };
+}
+
+// ---------- API views ----------
+
+export async function studyDataView(dataSource: DataSource, studyId: number): Promise<StudyDataResponse> {
+  const rows = await readRows(dataSource, studyId);
+  if (rows.waves.length === 0) {
+    return { hasData: false, format: null, uploadedAt: null, actors: [], covariates: [], waves: [], changes: [] };
+  }
+  const n = rows.actors.length;
+  const matrices = rows.waves.map(adjacencyOf);
+  return {
+    hasData: true,
+    format: rows.waves[0].sourceFormat,
+    uploadedAt: rows.waves[0].createdAt.toISOString(),
+    actors: rows.actors.map((a) => a.label),
+    covariates: rows.covariates.map((c) => summarizeCovariate({ ...c, changing: Boolean(c.changing) })),
+    waves: rows.waves.map((w, k) => summarizeWave(w.index, w.label, n, matrices[k])),
+    changes: rows.waves.slice(1).map((w, k) => compareWaves(rows.waves[k].index, w.index, n, matrices[k], matrices[k + 1])),
+  };
+}
+
+/** The ties and missing pairs of wave `index` (from 1); null if there is no such wave. */
+export async function waveTies(dataSource: DataSource, studyId: number, index: number): Promise<WaveTiesResponse | null> {
+  const wave = await dataSource.getRepository(WaveEntity).findOneBy({ studyId, index });
+  if (!wave) return null;
+  const actors = await dataSource.getRepository(ActorEntity).find({ where: { studyId }, order: { index: 'ASC' } });
+  const n = actors.length;
+  const ties: Array<[number, number]> = [];
+  const missing: Array<[number, number]> = [];
+  const adjacency = adjacencyOf(wave);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      if (i === j) continue;
+      const v = adjacency[i * n + j];
+      if (v === TIE_PRESENT) ties.push([i, j]);
+      else if (v === TIE_MISSING) missing.push([i, j]);
+    }
+  }
+  return { index: wave.index, label: wave.label, actors: actors.map((a) => a.label), ties, missing };
+}
+
+/** Rows of `table` per study, for the given study ids (0 where there are none). */
+export async function countPerStudy(dataSource: DataSource, table: string, studyIds: number[]): Promise<Map<number, number>> {
+  const counts = new Map<number, number>(studyIds.map((id) => [id, 0]));
+  if (studyIds.length === 0) return counts;
+  const rows: Array<{ studyId: number; n: number }> = await dataSource.query(
+    `SELECT "studyId", COUNT(*) AS n FROM "${table}" WHERE "studyId" IN (${studyIds.map(() => '?').join(',')}) GROUP BY "studyId"`,
+    studyIds,
+  );
+  for (const row of rows) counts.set(row.studyId, Number(row.n));
+  return counts;
+}
