@@ -76,6 +76,11 @@ function optionMask(n: number, free?: Uint8Array, active?: Uint8Array): Uint8Arr
   if (active !== undefined && active.length !== n) {
     throw new Error(`simulate: the actor mask has ${active.length} entries for ${n} actors`);
   }
+  return freePairMask(n, free, active);
+}
+
+/** Free ordered pairs (i != j, pair free, both actors active) as a 0/1 n*n mask; every pair when no masks are given. */
+export function freePairMask(n: number, free?: ArrayLike<number>, active?: ArrayLike<number>): Uint8Array {
   const mask = new Uint8Array(n * n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {

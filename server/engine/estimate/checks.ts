@@ -15,7 +15,7 @@
  * - Wavefit METHODS.md pitfalls 8.5 and 8.6.
  */
 import type { ParameterPlan, PeriodInput } from './problem';
-import { freePairMask } from './problem';
+import { freePairMask } from '../simulate';
 import { NetworkState } from '../state';
 
 export interface FitProblemNote {

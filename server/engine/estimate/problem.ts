@@ -16,7 +16,7 @@
  */
 import type { Effect } from '../effects';
 import { deriveSeed, createRng } from '../prng';
-import { simulatePeriod, targetStatistics, hamming } from '../simulate';
+import { simulatePeriod, targetStatistics, hamming, freePairMask } from '../simulate';
 import { NetworkState } from '../state';
 import { EstimationFailed, type MomentProblem, type ParameterKind } from './methodOfMoments';
 
@@ -92,20 +92,6 @@ export interface SaomProblem {
   notes: string[];
   /** Per period: observed Hamming distance over free pairs and the number of free pairs. */
   observedChange: Array<{ distance: number; freePairs: number; activeActors: number }>;
-}
-
-/** Free ordered pairs of a period (both actors active, pair free, i != j). */
-export function freePairMask(n: number, free?: Uint8Array, active?: Uint8Array): Uint8Array {
-  const mask = new Uint8Array(n * n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      if (i === j) continue;
-      let ok = free === undefined || free[i * n + j] !== 0;
-      if (ok && active !== undefined) ok = active[i] !== 0 && active[j] !== 0;
-      mask[i * n + j] = ok ? 1 : 0;
-    }
-  }
-  return mask;
 }
 
 /**
