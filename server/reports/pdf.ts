@@ -521,7 +521,7 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
 
   w.heading('Goodness of fit');
   w.text(
-    `For each auxiliary statistic the model was simulated ${report.batch.chains} times from the observed start wave of each period. The shaded bands hold the middle ${report.statistics[0]?.bands.map((b) => `${Math.round(b.coverage * 100)}%`).join(' and ') ?? ''} of the simulated values of each component; the line with points is the observed end wave. The p-value is the share of simulated networks at least as far (in Mahalanobis distance) from the simulated average as the observed one.`,
+    `For each auxiliary statistic the model was simulated ${report.batch.chains} times from the observed start wave of each period. The shaded bands hold the middle ${report.statistics[0]?.bands.map((b) => `${Math.round(b.coverage * 100)}%`).join(' and ') ?? ''} of the simulated values of each component; the line with points is the observed end wave. The p-value is the share of simulated networks at least as far (in Mahalanobis distance) from the average as the observed one, the observed network being counted with the simulated ones in the average and spread so that it is treated exactly like them; the form that leaves it out is given when the two disagree.`,
     { size: 9, colour: C.muted, gap: 8 },
   );
   for (const s of report.statistics) statisticBlock(w, report, s);
