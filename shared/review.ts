@@ -38,6 +38,7 @@
  */
 import { z } from 'zod';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
+import type { EnvelopeBandDto, MahalanobisDto } from './batches';
 
 export const VERDICTS = ['pass', 'fail', 'unsure'] as const;
 export type Verdict = (typeof VERDICTS)[number];
@@ -412,12 +413,12 @@ export interface EnvelopeChartDto {
   mean: number[];
   /** Simulated standard deviation per component (n - 1 in the denominator). */
   sd: number[];
-  bands: { coverage: number; lower: number[]; upper: number[]; outside: string[] }[];
+  bands: EnvelopeBandDto[];
   pValue: number;
   pValueSimulatedOnly: number;
   distance: number;
   chains: number;
-  outOfSupport: { component: string; observed: number; simulated: number }[];
+  outOfSupport: MahalanobisDto['outOfSupport'];
   reading: string;
   caution: string | null;
   scale: ChartScale;

@@ -25,6 +25,7 @@ import {
 import { getBatch, type LoadedBatch } from '../batches/service';
 import { inSyncTransaction, parseSqlDate, sqlNow, syncDb } from '../jobs/db';
 import type { SyncDb } from '../jobs/registry';
+import type { VerdictHistoryRow } from './entities';
 import { recordEvent, wakeAfterCommit, type ReportSignedPayload, type ReviewRequestedPayload } from '../notify/notifier';
 
 /** A refusal with a status, code and plain message; the routes turn it into the API's error shape. */
@@ -199,16 +200,9 @@ export function historyOf(db: SyncDb, batchId: number, statistic: string, period
       `SELECT "version", "userId", "userName", "previousVerdict", "verdict", "previousNote", "note", "createdAt" FROM "verdict_history"
        WHERE "batchId" = ? AND "statistic" = ? AND "period" = ? ORDER BY "version" DESC`,
     )
-    .all(batchId, statistic, period) as {
-    version: number;
-    userId: number | null;
-    userName: string;
-    previousVerdict: string | null;
-    verdict: string;
-    previousNote: string | null;
-    note: string;
+    .all(batchId, statistic, period) as (Omit<VerdictHistoryRow, 'id' | 'verdictId' | 'batchId' | 'statistic' | 'period' | 'createdAt'> & {
     createdAt: string;
-  }[];
+  })[];
   return rows.map((r) => ({
     version: r.version,
     by: person(r.userId, r.userName),
