@@ -15,6 +15,7 @@
  * - Wavefit METHODS.md sections 2, 3, 4.2.2 and 8.
  */
 import { cachesFor, type Effect } from './effects';
+import { compileUtilityKernel } from './kernel';
 import type { Rng } from './prng';
 import { NetworkState } from './state';
 
@@ -93,6 +94,13 @@ export function freePairMask(n: number, free?: ArrayLike<number>, active?: Array
   return mask;
 }
 
+/** The largest of u[0..n-1] and 0 (option "no change" always has utility 0). */
+function maxOf(u: Float64Array, n: number): number {
+  let max = 0;
+  for (let j = 0; j < n; j++) if (u[j] > max) max = u[j];
+  return max;
+}
+
 /**
  * Simulate one period. Uses exactly three uniforms per ministep (waiting time, actor, choice) plus one
  * for the waiting time that ends the period. Does not change `start`.
@@ -133,16 +141,17 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
   const cap = options.maxMinisteps ?? Math.ceil(mean + 10 * Math.sqrt(mean) + 10);
   if (!(cap >= 0)) throw new Error(`simulate: maxMinisteps must be >= 0, got ${String(options.maxMinisteps)}`);
 
-  // Effects split into row-uniform ones (folded into one pass) and general ones; zero parameters skipped.
-  const uniformIdx = new Int32Array(K);
-  const generalIdx = new Int32Array(K);
-  let nUniform = 0;
-  let nGeneral = 0;
+  // Effects with a kernel term go into one generated loop (kernel.ts); the others, and zero
+  // parameters, are handled apart (the others accumulated row by row after the kernel).
+  const fusedIdx: number[] = [];
+  const generalIdx: number[] = [];
   for (let k = 0; k < K; k++) {
     if (params[k] === 0) continue;
-    if (typeof effects[k].rowUniform === 'function') uniformIdx[nUniform++] = k;
-    else generalIdx[nGeneral++] = k;
+    if (effects[k].kernel !== undefined) fusedIdx.push(k);
+    else generalIdx.push(k);
   }
+  const nGeneral = generalIdx.length;
+  const kernel = compileUtilityKernel(effects, params, fusedIdx);
 
   // Buffers, allocated once per period (none in the ministep loop).
   const u = new Float64Array(n);
@@ -176,21 +185,16 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
     const row = i * n;
 
     // Utilities u_j = sum_k beta_k delta_ijk; option i (no change) has utility 0.
+    let max: number;
     if (rows === null) {
-      // Effects with a row-uniform change are folded into one pass that also initialises u.
-      let create = 0;
-      let remove = 0;
-      for (let t = 0; t < nUniform; t++) {
-        const k = uniformIdx[t];
-        const e = effects[k];
-        create += params[k] * e.rowUniform!(state, i, false);
-        remove += params[k] * e.rowUniform!(state, i, true);
-      }
-      const adj = state.adj;
-      for (let j = 0; j < n; j++) u[j] = adj[row + j] !== 0 ? remove : create;
-      for (let t = 0; t < nGeneral; t++) {
-        const k = generalIdx[t];
-        effects[k].accumulate(state, i, params[k], u);
+      max = kernel(state, i, u);
+      if (nGeneral > 0) {
+        for (let t = 0; t < nGeneral; t++) {
+          const k = generalIdx[t];
+          effects[k].accumulate(state, i, params[k], u);
+        }
+        u[i] = 0;
+        max = maxOf(u, n);
       }
     } else {
       rows.fill(0);
@@ -202,33 +206,32 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
         const b = params[k];
         if (b !== 0) for (let j = 0; j < n; j++) u[j] += b * rk[j];
       }
+      u[i] = 0;
+      max = maxOf(u, n);
     }
-    u[i] = 0;
     if (mask !== null) {
       for (let j = 0; j < n; j++) if (j !== i && mask[row + j] === 0) u[j] = -Infinity;
+      max = maxOf(u, n);
     }
-    let max = 0;
-    for (let j = 0; j < n; j++) if (u[j] > max) max = u[j];
     let sum = 0;
-    let last = i;
     for (let j = 0; j < n; j++) {
-      const w = Math.exp(u[j] - max);
-      if (w > 0) last = j;
-      sum += w;
+      sum += Math.exp(u[j] - max);
       cum[j] = sum;
     }
     if (weights !== null) for (let j = 0; j < n; j++) weights[j] = Math.exp(u[j] - max);
     if (!Number.isFinite(sum)) throw new Error(`simulate: the choice probabilities of actor ${i} are not finite`);
     // Inverse CDF: the first option whose cumulative weight exceeds u3 * sum, found by bisection (the
-    // cumulative weights are non-decreasing); the last option with positive weight absorbs rounding.
+    // cumulative weights are non-decreasing). When rounding puts the target at or above the total, the
+    // search ends on the last option; step back to the last one that added weight (never a masked one).
     const target = u3 * sum;
     let lo = 0;
-    let hi = last;
+    let hi = n - 1;
     while (lo < hi) {
       const mid = (lo + hi) >>> 1;
       if (target < cum[mid]) hi = mid;
       else lo = mid + 1;
     }
+    if (!(target < cum[lo])) while (lo > 0 && cum[lo] === cum[lo - 1]) lo--;
     const choice = lo;
 
     if (rows !== null && scoreBeta !== null && weights !== null) {

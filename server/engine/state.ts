@@ -1,6 +1,6 @@
 /**
- * Network state: a directed network on n actors as typed arrays, with degrees and the two-path and
- * shared-out-neighbour counts kept up to date on every tie toggle.
+ * Network state: a directed network on n actors as typed arrays, with degrees, neighbour lists and the
+ * two-path and shared-out-neighbour counts kept up to date on every tie toggle.
  *
  * Purpose: the simulator toggles one tie per ministep; every change statistic then reads O(1) numbers.
  *
@@ -30,6 +30,14 @@ export class NetworkState {
   readonly adjT: Uint8Array;
   readonly outdeg: Int32Array;
   readonly indeg: Int32Array;
+  /**
+   * Out-neighbour lists: the out-neighbours of i are outList[i*n .. i*n + outdeg[i] - 1], in no particular
+   * order. Uint16 entries suffice because n <= 46340. With inList, they let a toggle update the caches
+   * in O(degree) instead of O(n).
+   */
+  readonly outList: Uint16Array;
+  /** In-neighbour lists: the in-neighbours of j are inList[j*n .. j*n + indeg[j] - 1], in no particular order. */
+  readonly inList: Uint16Array;
   /** Two-path counts X X, or null when not kept. */
   readonly p2: Int32Array | null;
   /** Shared-out-neighbour counts X X^T, or null when not kept. */
@@ -48,6 +56,8 @@ export class NetworkState {
     this.adjT = new Uint8Array(n * n);
     this.outdeg = new Int32Array(n);
     this.indeg = new Int32Array(n);
+    this.outList = new Uint16Array(n * n);
+    this.inList = new Uint16Array(n * n);
     this.p2 = caches.twoPaths ? new Int32Array(n * n) : null;
     this.so = caches.sharedOut ? new Int32Array(n * n) : null;
     this.ties = 0;
@@ -97,9 +107,9 @@ export class NetworkState {
     return state;
   }
 
-  /** Recompute degrees, the tie count and the caches from the adjacency matrix (O(n L)). */
+  /** Recompute degrees, neighbour lists, the tie count and the caches from the adjacency matrix (O(n L)). */
   rebuild(): void {
-    const { n, adj, adjT, outdeg, indeg, p2, so } = this;
+    const { n, adj, adjT, outdeg, indeg, outList, inList, p2, so } = this;
     outdeg.fill(0);
     indeg.fill(0);
     let ties = 0;
@@ -107,8 +117,8 @@ export class NetworkState {
       const row = i * n;
       for (let j = 0; j < n; j++) {
         if (adj[row + j]) {
-          outdeg[i]++;
-          indeg[j]++;
+          outList[row + outdeg[i]++] = j;
+          inList[j * n + indeg[j]++] = i;
           ties++;
         }
       }
@@ -144,45 +154,56 @@ export class NetworkState {
   }
 
   /**
-   * Toggle the tie i->j (create it if absent, delete it if present) and update degrees and caches in O(n)
-   * (METHODS.md 2.2). Returns the sign: +1 for a created tie, -1 for a deleted one. i must differ from j;
-   * the simulator guarantees this, so the check is cheap and only guards direct callers.
+   * Toggle the tie i->j (create it if absent, delete it if present) and update degrees, neighbour lists
+   * and caches in O(degree) (METHODS.md 2.2). Returns the sign: +1 for a created tie, -1 for a deleted
+   * one. i must differ from j; the simulator guarantees this, so the check is cheap and only guards
+   * direct callers.
    */
   toggle(i: number, j: number): number {
     const n = this.n;
     if (i === j) throw new Error(`network-state: cannot toggle the self-tie (${i}, ${i})`);
     const adj = this.adj;
-    const adjT = this.adjT;
     const ij = i * n + j;
     const old = adj[ij];
     const s = old ? -1 : 1;
-    adj[ij] = 1 - old;
-    adjT[j * n + i] = 1 - old;
-    this.outdeg[i] += s;
-    this.indeg[j] += s;
-    this.ties += s;
+    const rowI = i * n;
+    const rowJ = j * n;
+    const outList = this.outList;
+    const inList = this.inList;
+    const outdeg = this.outdeg;
+    const indeg = this.indeg;
+    // The caches first, from the lists as they are before the toggle: outN(j) and inN(i) do not contain
+    // the pair being toggled; inN(j) may contain i, which is skipped.
     const p2 = this.p2;
     if (p2 !== null) {
-      // P2[i][b] += s * x_jb (row j of X); P2[a][j] += s * x_ai (column i of X = row i of X^T).
-      const rowI = i * n;
-      const rowJ = j * n;
-      for (let b = 0; b < n; b++) p2[rowI + b] += s * adj[rowJ + b];
-      // Column writes are strided (a cache line each), so only touch the in-neighbours of i.
-      for (let a = 0; a < n; a++) if (adjT[rowI + a] !== 0) p2[a * n + j] += s;
+      // P2[i][b] += s for every b with j->b; P2[a][j] += s for every a with a->i.
+      for (let t = rowJ, end = rowJ + outdeg[j]; t < end; t++) p2[rowI + outList[t]] += s;
+      for (let t = rowI, end = rowI + indeg[i]; t < end; t++) p2[inList[t] * n + j] += s;
     }
     const so = this.so;
     if (so !== null) {
-      // For b != i: SO[i][b] += s * x_bj and SO[b][i] += s * x_bj; SO[i][i] += s.
-      const rowI = i * n;
-      const colJ = j * n; // row j of X^T holds x_bj
-      for (let b = 0; b < n; b++) {
-        if (adjT[colJ + b] !== 0 && b !== i) {
+      // For b != i with b->j: SO[i][b] += s and SO[b][i] += s; SO[i][i] += s.
+      for (let t = rowJ, end = rowJ + indeg[j]; t < end; t++) {
+        const b = inList[t];
+        if (b !== i) {
           so[rowI + b] += s;
           so[b * n + i] += s;
         }
       }
       so[rowI + i] += s;
     }
+    adj[ij] = 1 - old;
+    this.adjT[rowJ + i] = 1 - old;
+    if (s > 0) {
+      outList[rowI + outdeg[i]] = j;
+      inList[rowJ + indeg[j]] = i;
+    } else {
+      removeFromList(outList, rowI, outdeg[i], j);
+      removeFromList(inList, rowJ, indeg[j], i);
+    }
+    outdeg[i] += s;
+    indeg[j] += s;
+    this.ties += s;
     return s;
   }
 
@@ -195,6 +216,8 @@ export class NetworkState {
     this.adjT.set(other.adjT);
     this.outdeg.set(other.outdeg);
     this.indeg.set(other.indeg);
+    this.outList.set(other.outList);
+    this.inList.set(other.inList);
     this.ties = other.ties;
     const needRebuild = (this.p2 !== null && other.p2 === null) || (this.so !== null && other.so === null);
     if (needRebuild) {
@@ -218,6 +241,17 @@ export class NetworkState {
     const { n, adj } = this;
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (adj[i * n + j]) out.push([i, j]);
     return out;
+  }
+}
+
+/** Remove `value` from the list list[start .. start + length - 1] (it must be there) by moving the last entry into its place. */
+function removeFromList(list: Uint16Array, start: number, length: number, value: number): void {
+  const last = start + length - 1;
+  for (let t = start; t < last; t++) {
+    if (list[t] === value) {
+      list[t] = list[last];
+      return;
+    }
   }
 }
 

@@ -1,6 +1,6 @@
 /**
- * Checks of the effects (server/engine/effects): change statistics, the fast row form and the network
- * totals against brute-force evaluation of each actor's statistic s_i from its defining sum.
+ * Checks of the effects (server/engine/effects): change statistics, the row form, the generated-loop form
+ * (server/engine/kernel.ts) and the network totals against brute-force evaluation of each actor's statistic s_i from its defining sum.
  *
  * Source of the definitions: Snijders (2001), The statistical evaluation of social network dynamics,
  * Sociological Methodology 31; Snijders, van de Bunt & Steglich (2010), Introduction to stochastic
@@ -10,6 +10,7 @@
 import { describe, expect, it } from 'vitest';
 import { EFFECT_IDS, effectInfo, type EffectId } from '../../shared/effects';
 import { buildEffects, type Effect } from '../../server/engine/effects';
+import { compileUtilityKernel } from '../../server/engine/kernel';
 import { NetworkState, NO_CACHES } from '../../server/engine/state';
 import { createRng, randomReciprocalNetwork } from './helpers';
 
@@ -86,6 +87,13 @@ describe('effects: change statistics and targets against brute force', () => {
           for (let i = 0; i < n; i++) {
             const row = new Float64Array(n);
             effect.accumulate(state, i, 1.5, row);
+            // The generated-loop form (server/engine/kernel.ts) of this effect alone, parameter 1.5.
+            const fused = new Float64Array(n).fill(Number.NaN);
+            const fusedMax = effect.kernel ? compileUtilityKernel([effect], [1.5], [0])(state, i, fused) : 0;
+            if (effect.kernel) {
+              expect(fused[i]).toBe(0);
+              expect(fusedMax).toBe(Math.max(0, ...fused));
+            }
             const before = egoStatistic(effect.id, x, i, cov);
             for (let j = 0; j < n; j++) {
               if (j === i) continue;
@@ -94,7 +102,7 @@ describe('effects: change statistics and targets against brute force', () => {
               x[i][j] = 1 - x[i][j];
               expect(effect.change(state, i, j)).toBeCloseTo(delta, 9);
               expect(row[j]).toBeCloseTo(1.5 * delta, 9);
-              if (effect.rowUniform) expect(effect.rowUniform(state, i, x[i][j] === 1)).toBeCloseTo(delta, 9);
+              if (effect.kernel) expect(fused[j]).toBeCloseTo(1.5 * delta, 9);
               checked++;
             }
           }

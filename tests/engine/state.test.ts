@@ -24,6 +24,23 @@ function products(n: number, adj: Uint8Array): { p2: Int32Array; so: Int32Array 
   return { p2, so };
 }
 
+/** The out- and in-neighbour lists hold exactly the row and column of the adjacency matrix. */
+function expectListsMatch(state: NetworkState): void {
+  const { n, adj } = state;
+  for (let i = 0; i < n; i++) {
+    const out = Array.from(state.outList.subarray(i * n, i * n + state.outdeg[i])).sort((a, b) => a - b);
+    const inn = Array.from(state.inList.subarray(i * n, i * n + state.indeg[i])).sort((a, b) => a - b);
+    const row: number[] = [];
+    const col: number[] = [];
+    for (let j = 0; j < n; j++) {
+      if (adj[i * n + j]) row.push(j);
+      if (adj[j * n + i]) col.push(j);
+    }
+    expect(out).toEqual(row);
+    expect(inn).toEqual(col);
+  }
+}
+
 describe('network state', () => {
   it('keeps degrees, transpose, two-path and shared-out counts equal to direct products under random toggles', () => {
     const rng = createRng(2024);
@@ -51,7 +68,26 @@ describe('network state', () => {
         expect(state.indeg[i]).toBe(inn);
       }
       expect(state.ties).toBe(state.adj.reduce((a, b) => a + b, 0));
+      expectListsMatch(state);
     }
+  });
+
+  it('keeps the neighbour lists equal to the rows and columns of the adjacency, from empty to complete and back', () => {
+    const n = 6;
+    const state = new NetworkState(n);
+    const pairs: Array<[number, number]> = [];
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (i !== j) pairs.push([i, j]);
+    const rng = createRng(8);
+    const order = pairs.map((p) => [rng.nextDouble(), p] as const).sort((a, b) => a[0] - b[0]).map(([, p]) => p);
+    for (const [i, j] of order) state.toggle(i, j);
+    expect(state.ties).toBe(n * (n - 1));
+    expectListsMatch(state);
+    for (const [i, j] of order.reverse()) {
+      state.toggle(i, j);
+      expectListsMatch(state);
+    }
+    expect(state.ties).toBe(0);
+    expect(Array.from(state.p2!).every((v) => v === 0)).toBe(true);
   });
 
   it('copies and clones without sharing memory, and rebuilds caches a source lacks', () => {
@@ -67,6 +103,10 @@ describe('network state', () => {
     c.copyFrom(b);
     expect(Array.from(c.adj)).toEqual(Array.from(b.adj));
     expect(Array.from(c.p2!)).toEqual(Array.from(b.p2!));
+    expectListsMatch(c);
+    c.toggle(2, 3);
+    expectListsMatch(c);
+    expectListsMatch(b);
     expect(() => new NetworkState(3).copyFrom(b)).toThrow(/network-state: cannot copy a network of 9 actors into one of 3/);
   });
 

@@ -31,9 +31,7 @@ export function densityEffect(): Effect {
     statistic(state: NetworkState): number {
       return state.ties;
     },
-    rowUniform(_state: NetworkState, _i: number, deleting: boolean): number {
-      return deleting ? -1 : 1;
-    },
+    kernel: { create: '1', remove: '-1' },
   };
 }
 
@@ -64,5 +62,6 @@ export function reciprocityEffect(): Effect {
       for (let k = 0; k < adj.length; k++) s += adj[k] & adjT[k];
       return s;
     },
+    kernel: { pair: 'adjT[k]' },
   };
 }

@@ -90,9 +90,7 @@ export function covariateEgoEffect(name: string, values: Float64Array, centring:
       for (let i = 0; i < state.n; i++) s += c[i] * state.outdeg[i];
       return s;
     },
-    rowUniform(_state: NetworkState, i: number, deleting: boolean): number {
-      return deleting ? -c[i] : c[i];
-    },
+    kernel: { data: { c }, create: '$c[i]', remove: '-$c[i]' },
   };
 }
 
@@ -120,6 +118,7 @@ export function covariateAlterEffect(name: string, values: Float64Array, centrin
       for (let j = 0; j < state.n; j++) s += c[j] * state.indeg[j];
       return s;
     },
+    kernel: { data: { c }, pair: '$c[j]' },
   };
 }
 
@@ -158,6 +157,7 @@ export function covariateSimilarityEffect(name: string, values: Float64Array, ce
       }
       return s;
     },
+    kernel: { data: { c, base, inv }, pre: 'const $ci = $c[i];', pair: '$base - Math.abs($ci - $c[j]) * $inv' },
   };
 }
 
@@ -198,5 +198,7 @@ export function sameCovariateEffect(name: string, codes: Int32Array): Effect {
       }
       return s;
     },
+    // A missing category (-1) matches nothing, so ego's term is switched off.
+    kernel: { data: { v }, pre: 'const $vi = $v[i]; const $on = $vi >= 0 ? 1 : 0;', pair: '$v[j] === $vi ? $on : 0' },
   };
 }

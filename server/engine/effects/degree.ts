@@ -39,6 +39,8 @@ export function indegreePopularityEffect(): Effect {
       for (let j = 0; j < state.n; j++) s += state.indeg[j] * state.indeg[j];
       return s;
     },
+    // sigma (d_in + 1) with d_in = x_+j - x_ij equals sigma x_+j + (1 - x_ij).
+    kernel: { create: '1', pair: 'indeg[j]' },
   };
 }
 
@@ -68,9 +70,6 @@ export function outdegreeActivityEffect(): Effect {
       for (let i = 0; i < state.n; i++) s += state.outdeg[i] * state.outdeg[i];
       return s;
     },
-    rowUniform(state: NetworkState, i: number, deleting: boolean): number {
-      const d = state.outdeg[i];
-      return deleting ? -(2 * d - 1) : 2 * d + 1;
-    },
+    kernel: { pre: 'const $d = outdeg[i];', create: '2 * $d + 1', remove: '1 - 2 * $d' },
   };
 }

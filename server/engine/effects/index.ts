@@ -22,7 +22,7 @@ import { indegreePopularityEffect, outdegreeActivityEffect } from './degree';
 import { threeCyclesEffect, transitiveTiesEffect, transitiveTripletsEffect } from './triadic';
 import type { CovariateCentring, CovariateValues, Effect, EffectSpec } from './types';
 
-export type { CovariateCentring, CovariateValues, Effect, EffectSpec } from './types';
+export type { CovariateCentring, CovariateValues, Effect, EffectSpec, KernelTerm } from './types';
 export { centreCovariate, covariateRange, similarityMean } from './covariate';
 
 const STRUCTURAL: Partial<Record<EffectId, () => Effect>> = {

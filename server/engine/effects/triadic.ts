@@ -61,6 +61,7 @@ export function transitiveTripletsEffect(): Effect {
         out[j] += weight * (1 - 2 * adj[k]) * (p2[k] + so[k]);
       }
     },
+    kernel: { pair: 'p2[k] + so[k]' },
     statistic(state: NetworkState): number {
       const { n, adj, p2 } = state;
       let s = 0;
@@ -100,6 +101,7 @@ export function threeCyclesEffect(): Effect {
         if (c !== 0) out[j] += weight * (1 - 2 * adj[row + j]) * c;
       }
     },
+    kernel: { pair: 'p2[j * n + i]' },
     statistic(state: NetworkState): number {
       const { n, adj, p2 } = state;
       let s = 0;

@@ -36,11 +36,30 @@ export interface Effect {
   /** The network total sum_i s_i(x), the target statistic of the method of moments. */
   statistic(state: NetworkState): number;
   /**
-   * Optional fast path for effects whose delta_ij depends on j only through x_ij (density, outdegree
-   * activity, covariate ego): the change for creating any tie of ego i (deleting = false) or for deleting
-   * any (deleting = true). The simulator then folds such effects into one pass over the row.
+   * Optional source snippets of delta_ij for the simulator's generated utility loop (server/engine/kernel.ts).
+   * Effects without one are accumulated row by row after the kernel.
    */
-  rowUniform?(state: NetworkState, i: number, deleting: boolean): number;
+  readonly kernel?: KernelTerm;
+}
+
+/**
+ * An effect's change statistic as snippets of JavaScript source, pasted into one generated loop:
+ *
+ *   delta_ij = (x_ij = 0 ? create : remove) + (1 - 2 x_ij) * pair
+ *
+ * `create` and `remove` may read ego i only; `pair` is evaluated for each alter j with k = i*n + j.
+ * Available names: n, i, row (= i*n), j, k, adj, adjT, p2, so, indeg, outdeg (the NetworkState arrays).
+ * `$name` is private to the term: a field of `data` or a constant declared in `pre`. Omitted parts are 0.
+ * Snippets are expressions (and `const` declarations in `pre`), with no braces.
+ */
+export interface KernelTerm {
+  /** `const` declarations run once per ministep, before the loop over alters. */
+  readonly pre?: string;
+  readonly create?: string;
+  readonly remove?: string;
+  readonly pair?: string;
+  /** Arrays and numbers the snippets read as `$name`. */
+  readonly data?: Readonly<Record<string, unknown>>;
 }
 
 /** A numeric covariate (NaN = missing) or a categorical one (integer codes >= 0, -1 = missing). */
