@@ -20,6 +20,7 @@ import {
   type StatisticLayout,
 } from '../../shared/batches';
 import { effectInfo, type EffectId } from '../../shared/effects';
+import { csvLine } from '../../shared/csvSafe';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
 import { compareNetworks, consensusAtThreshold, consensusTopL, TieFrequencies } from '../engine/consensus';
 import { buildEffects } from '../engine/effects';
@@ -480,13 +481,12 @@ export function gofSummaryOf(batch: LoadedBatch, matrix: { chains: number; width
 }
 
 export function statisticsCsv(batch: LoadedBatch, matrix: { chains: number; width: number; data: Float64Array }, statistic: { layout: StatisticLayout; offset: number }, period: number): string {
-  const escape = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
   const { layout, offset } = statistic;
-  const lines = [['chain', ...layout.components.map((c) => `${layout.statistic}:${c}`)].map(escape).join(',')];
+  const lines = [csvLine(['chain', ...layout.components.map((c) => `${layout.statistic}:${c}`)])];
   for (let s = 0; s < matrix.chains; s++) {
-    const values: string[] = [String(s + 1)];
-    for (let k = 0; k < layout.components.length; k++) values.push(String(matrix.data[s * matrix.width + offset + k]));
-    lines.push(values.join(','));
+    const values: number[] = [s + 1];
+    for (let k = 0; k < layout.components.length; k++) values.push(matrix.data[s * matrix.width + offset + k]);
+    lines.push(csvLine(values));
   }
   return lines.join('\n') + '\n';
 }
