@@ -5,9 +5,10 @@
  *
  * Endpoints (all under /api; auth by httpOnly cookie "wavefit_token" or "Authorization: Bearer <jwt>"):
  *   POST   /auth/login                         LoginBody            -> SessionResponse (+ cookie)
- *   POST   /auth/logout                                             -> 204 (cookie cleared)
+ *   POST   /auth/logout                                             -> 204 (this session ended, cookie cleared)
+ *   POST   /auth/logout-everywhere                                  -> 204 (every session of the user ended)
  *   GET    /auth/me                                                 -> SessionResponse
- *   POST   /auth/password                      ChangePasswordBody   -> 204
+ *   POST   /auth/password                      ChangePasswordBody   -> SessionResponse (+ cookie; other sessions ended)
  *   GET    /invitations/:token                                      -> InvitationPreview
  *   POST   /invitations/:token/accept          AcceptInvitationBody -> SessionResponse (+ cookie)
  *   GET    /studies                                                 -> { studies: StudySummary[] }
@@ -58,7 +59,8 @@ export interface ApiErrorBody {
  * The error codes the server sends (ApiErrorBody.error.code), with their HTTP status:
  * bad_request 400, validation_failed 400 (details: FieldErrorDetails), malformed_json 400,
  * data_invalid 400 (details: DataProblemDetails, shared/data.ts), unauthenticated 401,
- * token_expired 401, token_invalid 401, invalid_credentials 401, forbidden 403, not_found 404,
+ * token_expired 401, token_invalid 401, session_ended 401 (signed out, signed out everywhere or
+ * password changed), invalid_credentials 401, forbidden 403, not_found 404,
  * already_member 409, last_lead 409, data_in_use 409, invitation_expired 410, invitation_used 410,
  * payload_too_large 413, rate_limited 429, internal 500.
  */
@@ -70,6 +72,7 @@ export type ApiErrorCode =
   | 'unauthenticated'
   | 'token_expired'
   | 'token_invalid'
+  | 'session_ended'
   | 'invalid_credentials'
   | 'forbidden'
   | 'not_found'

@@ -1,5 +1,5 @@
 /**
- * /api/auth: sign in, sign out, who am I, change password.
+ * /api/auth: sign in, sign out (this session or everywhere), who am I, change password.
  * A wrong password and an unknown e-mail get the same answer.
  */
 import { Router } from 'express';
@@ -41,7 +41,14 @@ export function authRouter(deps: RouteDeps): Router {
     res.json(sessionResponse(user, session.token, session.expiresAt));
   });
 
-  router.post('/logout', (_req, res) => {
+  router.post('/logout', async (req, res) => {
+    await auth.endThisSession(req);
+    auth.endSession(res);
+    res.status(204).end();
+  });
+
+  router.post('/logout-everywhere', auth.requireUser, async (req, res) => {
+    await auth.endAllSessions(currentUser(req));
     auth.endSession(res);
     res.status(204).end();
   });
@@ -58,7 +65,11 @@ export function authRouter(deps: RouteDeps): Router {
       throw badRequest('The current password is not right.', { fields: { currentPassword: ['The current password is not right.'] } }, 'validation_failed');
     }
     await users.update({ id: user.id }, { passwordHash: await hashPassword(body.newPassword, config.passwordHash) });
-    res.status(204).end();
+    // Every other session ends; this one goes on with a fresh token (OWASP: renew the session on a
+    // change of credentials).
+    const updated = await auth.endAllSessions(user);
+    const session = auth.startSession(res, updated);
+    res.json(sessionResponse(updated, session.token, session.expiresAt));
   });
 
   return router;

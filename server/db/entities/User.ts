@@ -9,6 +9,11 @@ export interface User {
   /** argon2id encoded hash (parameters and salt included). */
   passwordHash: string;
   isAdmin: boolean;
+  /**
+   * Session epoch: every session token carries the epoch it was made in, and only tokens of the
+   * current epoch are accepted. Raised by a password change and by "sign out everywhere".
+   */
+  sessionEpoch: number;
   createdAt: Date;
 }
 
@@ -21,6 +26,7 @@ export const UserEntity = new EntitySchema<User>({
     name: { type: 'varchar', length: 120 },
     passwordHash: { type: 'varchar', length: 255 },
     isAdmin: { type: 'boolean', default: false },
+    sessionEpoch: { type: 'integer', default: 0 },
     createdAt: { type: 'datetime', createDate: true },
   },
   uniques: [{ name: 'UQ_users_email', columns: ['email'] }],

@@ -14,6 +14,7 @@ import { JobChunkEntity, JobEntity } from '../../jobs/entities';
 import { BatchEntity, BatchResultEntity, BatchTieCountsEntity } from '../../batches/entities';
 import { FitEntity, ModelSpecEntity } from '../../models/entities';
 import { reviewEntities } from '../../review/entities';
+import { EndedSessionEntity } from '../../auth/sessionEntities';
 
 export * from './Actor';
 export * from './Covariate';
@@ -39,4 +40,5 @@ export const entities = [
   ModelSpecEntity,
   FitEntity,
   ...reviewEntities,
+  EndedSessionEntity,
 ];
