@@ -61,7 +61,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   const review = reviewRouter(routeDeps);
   api.use(review);
   api.use(reportsRouter(routeDeps, review));
-  if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
+  // Only when asked for explicitly (WAVEFIT_DEV_OUTBOX=1, never in production); admins only.
+  if (config.devOutbox && !config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);
 
   app.use('/api', json, api);

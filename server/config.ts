@@ -59,6 +59,11 @@ export interface Config {
   secureCookies: boolean;
   /** Where the exported web app lives (served by main.ts). */
   distDir: string;
+  /**
+   * Mount GET /api/dev/outbox (the e-mails kept by the local outbox, invitation links included),
+   * for signed-in site admins only. Only when WAVEFIT_DEV_OUTBOX=1 and never in production.
+   */
+  devOutbox: boolean;
 }
 
 /** Common practice (OWASP password storage guidance, 2023): argon2id, 19 MiB, 2 passes, 1 lane. */
@@ -128,11 +133,13 @@ function trustProxyFromEnv(raw: string | undefined): boolean | number | string {
 /** Builds the configuration from environment variables (process.env by default). */
 export function loadConfig(env: Env = process.env, overrides: Partial<Config> = {}): Config {
   const nodeEnv = env.NODE_ENV || 'development';
+  // NODE_ENV=Production or PRODUCTION is production too.
+  const isProduction = nodeEnv.trim().toLowerCase() === 'production';
   const port = intFromEnv(env, 'PORT', 4300);
   const dbPath = overrides.dbPath ?? (env.WAVEFIT_DB || DEFAULT_DB_PATH);
   const config: Config = {
     nodeEnv,
-    isProduction: nodeEnv === 'production',
+    isProduction,
     version: packageJson.version,
     port,
     dbPath,
@@ -152,6 +159,7 @@ export function loadConfig(env: Env = process.env, overrides: Partial<Config> = 
     trustProxy: trustProxyFromEnv(env.TRUST_PROXY),
     secureCookies: env.SECURE_COOKIES === 'true' || (env.PUBLIC_URL ?? '').startsWith('https://'),
     distDir: resolve(env.WAVEFIT_DIST || 'dist'),
+    devOutbox: env.WAVEFIT_DEV_OUTBOX === '1' && !isProduction,
   };
   return { ...config, ...overrides };
 }

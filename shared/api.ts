@@ -20,8 +20,8 @@
  *   DELETE /studies/:studyId/invitations/:id                        -> 204 (lead)
  *   PATCH  /studies/:studyId/members/:userId   ChangeRoleBody       -> { member: Member }        (lead; never leaves a study without a lead)
  *   DELETE /studies/:studyId/members/:userId                        -> 204 (lead; never removes the last lead)
- *   GET    /dev/outbox                                              -> { messages: OutboxMessage[] } (not in production)
- *   GET    /health                                                  -> { ok: true, version }
+ *   GET    /health                                                  -> HealthResponse
+ *   GET    /dev/outbox   (only when HealthResponse.devOutbox; admins)   -> { messages: OutboxMessage[] }
  * Study data (contract in shared/data.ts):
  *   POST   /studies/:studyId/data              DataUploadBody       -> DataUploadResponse (lead, statistician; replaces the data)
  *   GET    /studies/:studyId/data                                   -> StudyDataResponse  (members)
@@ -124,6 +124,13 @@ export interface UserInfo {
   name: string;
   isAdmin: boolean;
 }
+/** GET /health. devOutbox: whether GET /dev/outbox is mounted (WAVEFIT_DEV_OUTBOX=1, outside production). */
+export interface HealthResponse {
+  ok: true;
+  version: string;
+  devOutbox: boolean;
+}
+
 export interface SessionResponse {
   user: UserInfo;
   /** The same JWT as in the cookie, for scripts that use the bearer header. */

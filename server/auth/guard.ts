@@ -73,14 +73,17 @@ export function createAuth(deps: { dataSource: DataSource; config: Config }): Au
     path: '/',
   };
 
-  const requireUser: RequestHandler = async (req, _res, next) => {
+  const requireUser: RequestHandler = async (req, res, next) => {
     const token = tokenFrom(req);
     if (!token) throw new ApiError(401, 'unauthenticated', 'Sign in to continue.');
     const session = verifySession(config, token);
     const user = await users.findOneBy({ id: session.userId });
     if (!user) throw new ApiError(401, 'token_invalid', 'The account of this session no longer exists. Sign in again.');
-    if (session.epoch !== user.sessionEpoch) throw sessionEnded();
-    if (await ended.existsBy({ tokenId: session.tokenId })) throw sessionEnded();
+    if (session.epoch !== user.sessionEpoch || (await ended.existsBy({ tokenId: session.tokenId }))) {
+      // The browser need not send the dead cookie again.
+      if (!req.get('authorization')) res.clearCookie(SESSION_COOKIE, cookieOptions);
+      throw sessionEnded();
+    }
     req.auth = { user, token, expiresAt: session.expiresAt };
     next();
   };
