@@ -8,6 +8,7 @@ import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join, parse, resolve } from 'node:path';
 import packageJson from '../package.json';
+import type { GuessLimitConfig } from './auth/guessLimits';
 
 export interface RateLimitConfig {
   /** Failed login attempts allowed per IP address and e-mail within the window. */
@@ -48,6 +49,8 @@ export interface Config {
   jsonLimit: string;
   uploadJsonLimit: string;
   loginRateLimit: RateLimitConfig;
+  /** Wrong passwords per account and per address, over sign-in, password change and invitations. */
+  guessLimits: GuessLimitConfig;
   passwordHash: PasswordHashConfig;
   /** Invitations expire after this many days. */
   invitationDays: number;
@@ -150,6 +153,11 @@ export function loadConfig(env: Env = process.env, overrides: Partial<Config> = 
     uploadJsonLimit: '16mb',
     loginRateLimit: {
       max: intFromEnv(env, 'LOGIN_RATE_LIMIT', 10),
+      windowMs: intFromEnv(env, 'LOGIN_RATE_WINDOW_MINUTES', 15) * 60_000,
+    },
+    guessLimits: {
+      perAccount: intFromEnv(env, 'GUESS_LIMIT_ACCOUNT', 20),
+      perAddress: intFromEnv(env, 'GUESS_LIMIT_ADDRESS', 30),
       windowMs: intFromEnv(env, 'LOGIN_RATE_WINDOW_MINUTES', 15) * 60_000,
     },
     passwordHash: DEFAULT_PASSWORD_HASH,

@@ -13,6 +13,7 @@ import { MembershipEntity } from '../db/entities/Membership';
 import { StudyEntity } from '../db/entities/Study';
 import { UserEntity, type User } from '../db/entities/User';
 import { ApiError, forbidden, idParam, notFound } from '../errors';
+import { createGuessLimits, type GuessLimits } from './guessLimits';
 import { EndedSessionEntity } from './sessionEntities';
 import { SESSION_COOKIE, sessionEnded, signSession, verifySession, type SessionToken } from './tokens';
 
@@ -30,6 +31,8 @@ export interface Auth {
   endThisSession(req: Request): Promise<void>;
   /** Ends every session of the user (raises the session epoch); returns the user with the new epoch. */
   endAllSessions(user: User): Promise<User>;
+  /** The app's limits on wrong passwords, per account and per address (one set of counters). */
+  guessLimits: GuessLimits;
 }
 
 const ABILITY_WORDS: Record<Ability, string> = {
@@ -110,6 +113,7 @@ export function createAuth(deps: { dataSource: DataSource; config: Config }): Au
   return {
     requireUser,
     requireStudyRole,
+    guessLimits: createGuessLimits(config.guessLimits),
     startSession(res, user) {
       const session = signSession(config, user.id, user.sessionEpoch);
       res.cookie(SESSION_COOKIE, session.token, { ...cookieOptions, maxAge: config.tokenTtlSeconds * 1000 });

@@ -11,6 +11,7 @@ import {
   type SessionResponse,
 } from '../../shared/api';
 import { currentUser } from '../auth/context';
+import { markWrongPassword } from '../auth/guessLimits';
 import { createLoginLimiter } from '../auth/loginLimiter';
 import { hashPassword, makeDecoyHash, verifyPassword } from '../auth/passwords';
 import { UserEntity, type User } from '../db/entities/User';
@@ -28,13 +29,15 @@ export function authRouter(deps: RouteDeps): Router {
   const decoyHash = makeDecoyHash(config.passwordHash);
   const router = Router();
 
-  router.post('/login', createLoginLimiter(config.loginRateLimit), validate(loginBodySchema), async (req, res) => {
+  const loginGuesses = auth.guessLimits.guard((req) => (req.body as LoginBody).email);
+  router.post('/login', createLoginLimiter(config.loginRateLimit), validate(loginBodySchema), ...loginGuesses, async (req, res) => {
     const body = req.body as LoginBody;
     const user = await users.findOneBy({ email: body.email });
     const ok = user
       ? await verifyPassword(user.passwordHash, body.password)
       : (await verifyPassword(await decoyHash(), body.password), false);
     if (!user || !ok) {
+      markWrongPassword(res);
       throw new ApiError(401, 'invalid_credentials', 'The e-mail address or the password is not right.');
     }
     const session = auth.startSession(res, user);
@@ -58,10 +61,12 @@ export function authRouter(deps: RouteDeps): Router {
     res.json(sessionResponse(user, token, expiresAt));
   });
 
-  router.post('/password', auth.requireUser, validate(changePasswordBodySchema), async (req, res) => {
+  const passwordGuesses = auth.guessLimits.guard((req) => currentUser(req).email);
+  router.post('/password', auth.requireUser, validate(changePasswordBodySchema), ...passwordGuesses, async (req, res) => {
     const body = req.body as ChangePasswordBody;
     const user = currentUser(req);
     if (!(await verifyPassword(user.passwordHash, body.currentPassword))) {
+      markWrongPassword(res);
       throw badRequest('The current password is not right.', { fields: { currentPassword: ['The current password is not right.'] } }, 'validation_failed');
     }
     await users.update({ id: user.id }, { passwordHash: await hashPassword(body.newPassword, config.passwordHash) });
