@@ -10,6 +10,7 @@ import { modelsRouter } from './models/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
+import { securityHeaders } from './securityHeaders';
 import { authRouter } from './routes/auth';
 import { dataRouter } from './routes/data';
 import type { AppDeps } from './routes/deps';
@@ -34,6 +35,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
+  // Before every route, so the web app that main.ts adds gets the headers too.
+  app.use(securityHeaders(config));
 
   const smallJson = express.json({ limit: config.jsonLimit });
   const uploadJson = express.json({ limit: config.uploadJsonLimit });

@@ -165,7 +165,9 @@ export function loadConfig(env: Env = process.env, overrides: Partial<Config> = 
     mailFrom: env.MAIL_FROM || 'Wavefit <no-reply@wavefit.invalid>',
     smtp: smtpFromEnv(env),
     trustProxy: trustProxyFromEnv(env.TRUST_PROXY),
-    secureCookies: env.SECURE_COOKIES === 'true' || (env.PUBLIC_URL ?? '').startsWith('https://'),
+    // Secure cookies with an https address and in production, unless SECURE_COOKIES=false says otherwise.
+    secureCookies:
+      env.SECURE_COOKIES === 'false' ? false : env.SECURE_COOKIES === 'true' || (env.PUBLIC_URL ?? '').startsWith('https://') || isProduction,
     distDir: resolve(env.WAVEFIT_DIST || 'dist'),
     devOutbox: env.WAVEFIT_DEV_OUTBOX === '1' && !isProduction,
   };

@@ -28,6 +28,7 @@
  *   GET    /studies/:studyId/data/waves/:index                      -> WaveTiesResponse   (members; index from 1)
  */
 import { z } from 'zod';
+import { PLAIN_LINE_MESSAGE, PLAIN_TEXT_MESSAGE, isPlainLine, isPlainText } from './plainText';
 
 // ---------- roles ----------
 export const STUDY_ROLES = ['lead', 'statistician', 'reviewer'] as const;
@@ -113,7 +114,7 @@ export const changePasswordBodySchema = z.object({
 export type ChangePasswordBody = z.infer<typeof changePasswordBodySchema>;
 
 export const acceptInvitationBodySchema = z.object({
-  name: z.string().trim().min(1, 'Enter your name.').max(120),
+  name: z.string().trim().min(1, 'Enter your name.').max(120).refine(isPlainLine, `A name ${PLAIN_LINE_MESSAGE}.`),
   password: passwordSchema,
 });
 export type AcceptInvitationBody = z.infer<typeof acceptInvitationBodySchema>;
@@ -150,15 +151,15 @@ export interface InvitationPreview {
 
 // ---------- studies ----------
 export const createStudyBodySchema = z.object({
-  name: z.string().trim().min(3, 'A study name needs at least 3 characters.').max(120, 'A study name may have at most 120 characters.'),
-  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').default(''),
+  name: z.string().trim().min(3, 'A study name needs at least 3 characters.').max(120, 'A study name may have at most 120 characters.').refine(isPlainLine, `A study name ${PLAIN_LINE_MESSAGE}.`),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).default(''),
 });
 export type CreateStudyBody = z.input<typeof createStudyBodySchema>;
 
 /** Only the fields sent change (no defaults here, so a rename keeps the description). */
 export const updateStudyBodySchema = z.object({
   name: createStudyBodySchema.shape.name.optional(),
-  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').optional(),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).optional(),
 });
 export type UpdateStudyBody = z.input<typeof updateStudyBodySchema>;
 

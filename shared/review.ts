@@ -39,6 +39,7 @@
 import { z } from 'zod';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
 import type { EnvelopeBandDto, MahalanobisDto } from './batches';
+import { PLAIN_TEXT_MESSAGE, isPlainText } from './plainText';
 
 export const VERDICTS = ['pass', 'fail', 'unsure'] as const;
 export type Verdict = (typeof VERDICTS)[number];
@@ -66,7 +67,7 @@ export const verdictBodySchema = z.object({
   statistic: statisticSchema,
   period: periodSchema,
   verdict: z.enum(VERDICTS, { error: 'The verdict must be "pass", "fail" or "unsure".' }),
-  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).refine(isPlainText, `A note ${PLAIN_TEXT_MESSAGE}.`).default(''),
   /** The version the client last saw: 0 when the card had no verdict yet. */
   version: z
     .number({ error: 'Send the version of the verdict you last saw (0 when there was none).' })
@@ -109,7 +110,7 @@ export const notificationPreferencesBodySchema = z
 export type NotificationPreferencesBody = z.input<typeof notificationPreferencesBodySchema>;
 
 export const signoffBodySchema = z.object({
-  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).refine(isPlainText, `A note ${PLAIN_TEXT_MESSAGE}.`).default(''),
 });
 export type SignoffBody = z.input<typeof signoffBodySchema>;
 

@@ -47,8 +47,9 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
     () =>
       onSessionEnded((message) => {
         setEndedMessage(message);
-        // Forget everything the ended session could read, then learn that we are signed out.
-        void mutateAny((key) => key !== sessionKey, undefined, { revalidate: false }).then(() => me.mutate());
+        // Forget everything the ended session could read (the session itself too: swr would keep
+        // stale data beside the 401), then learn that we are signed out.
+        void mutateAny(() => true, undefined, { revalidate: false }).then(() => me.mutate());
       }),
     [me, mutateAny],
   );
