@@ -8,11 +8,19 @@ import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join, parse, resolve } from 'node:path';
 import packageJson from '../package.json';
-import type { GuessLimitConfig } from './auth/guessLimits';
 
 export interface RateLimitConfig {
   /** Failed login attempts allowed per IP address and e-mail within the window. */
   max: number;
+  windowMs: number;
+}
+
+/** Wrong passwords allowed per account and per address (server/auth/guessLimits.ts). */
+export interface GuessLimitConfig {
+  /** Wrong passwords allowed for one account (any address) within the window. */
+  perAccount: number;
+  /** Wrong passwords allowed from one address (any accounts) within the window. */
+  perAddress: number;
   windowMs: number;
 }
 

@@ -14,15 +14,9 @@
  */
 import type { Request, RequestHandler, Response } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import type { GuessLimitConfig } from '../config';
 import { ApiError } from '../errors';
 
-export interface GuessLimitConfig {
-  /** Wrong passwords allowed for one account (any address) within the window. */
-  perAccount: number;
-  /** Wrong passwords allowed from one address (any accounts) within the window. */
-  perAddress: number;
-  windowMs: number;
-}
 
 export interface GuessLimits {
   /**

@@ -1,7 +1,7 @@
 /**
  * Session tokens: JWT signed with HS256. The payload names the user (sub), the user's session
  * epoch when the token was made (ep) and a random token id (jti). Every request reloads the user
- * and checks both, so a session can end before it expires (server/auth/sessions.ts):
+ * and checks both, so a session can end before it expires (server/auth/guard.ts):
  * - a password change or "sign out everywhere" raises the user's epoch: all older tokens end;
  * - signing out lists the token id as ended: only that token ends.
  */

@@ -9,7 +9,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { csvCell, csvDocument } from '../../shared/csvSafe';
 import type { BatchDetail } from '../../shared/batches';
-import { UserEntity } from '../../server/db/entities/User';
+import { UserEntity } from '../../server/auth/entities';
 import { stopJobQueue } from '../../server/jobs';
 import { REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 

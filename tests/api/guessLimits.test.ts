@@ -9,7 +9,7 @@ import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD } from '../../server/db/seed';
 import { hashPassword, verifyPassword } from '../../server/auth/passwords';
-import { UserEntity } from '../../server/db/entities/User';
+import { UserEntity } from '../../server/auth/entities';
 import { ADMIN, LEAD, REVIEWER, STATS, bearer, makeTestApp } from './helpers';
 
 const LIMITS = { perAccount: 4, perAddress: 6, windowMs: 60_000 };

@@ -6,7 +6,7 @@ import { Router } from 'express';
 import { currentUser } from '../auth/context';
 import { forbidden } from '../errors';
 import { isOutbox } from '../mail/mailer';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function devRouter(deps: RouteDeps): Router {
   const router = Router();

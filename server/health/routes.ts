@@ -3,7 +3,7 @@
  * (devOutbox; the client shows its tab only then). Checks the database with a trivial query.
  */
 import { Router } from 'express';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function healthRouter(deps: RouteDeps): Router {
   const router = Router();
