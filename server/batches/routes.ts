@@ -9,6 +9,7 @@ import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
+import { gofStoreFor } from './gofStore';
 import {
   BatchInputError,
   batchDetail,
@@ -18,8 +19,7 @@ import {
   consensusOf,
   createBatch,
   getBatch,
-  gofOf,
-  gofSummaryOf,
+  gofSummaryFrom,
   listBatches,
   parseCoverages,
   periodMatrix,
@@ -56,6 +56,9 @@ export function batchesRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
   const router = Router();
   const cache = new MatrixCache();
+  // The GOF of finished batches: computed once in a worker thread and kept (gofStore.ts). Made here so
+  // it hears when this app's batches finish.
+  const gof = gofStoreFor(dataSource);
 
   const loadBatch = (req: Request): LoadedBatch => {
     const { study } = currentStudy(req);
@@ -103,26 +106,28 @@ export function batchesRouter(deps: RouteDeps): Router {
     res.json({ batch: batchDetail(dataSource, getBatch(dataSource, batch.row.studyId, batch.row.id)!) });
   });
 
-  router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+  router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
     try {
       const period = checkPeriod(batch, req.query.period);
       const statistic = checkStatistic(batch, req.query.statistic);
       const coverages = parseCoverages(req.query.coverage);
       finished(batch);
-      res.json(gofOf(batch, matrixOf(batch, period), statistic, period, coverages));
+      const results = await gof.period(batch, period, coverages);
+      res.json(results.find((r) => r.gof.statistic === statistic.layout.statistic)!.gof);
     } catch (error) {
       throw toApiError(error);
     }
   });
 
-  router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+  router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
     try {
       const period = checkPeriod(batch, req.query.period);
       const coverages = parseCoverages(req.query.coverage);
       finished(batch);
-      res.json(gofSummaryOf(batch, matrixOf(batch, period), period, coverages));
+      const results = await gof.period(batch, period, coverages);
+      res.json(gofSummaryFrom(batch, results.map((r) => r.gof), period, coverages));
     } catch (error) {
       throw toApiError(error);
     }

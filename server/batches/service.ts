@@ -461,8 +461,13 @@ export function gofOf(
 
 export function gofSummaryOf(batch: LoadedBatch, matrix: { chains: number; width: number; data: Float64Array }, period: number, coverages: number[]): GofSummaryResponse {
   const { offsets } = layoutOffsets(batch.layout);
-  const rows = batch.layout.map((layout) => {
-    const g = gofOf(batch, matrix, { layout, offset: offsets.get(layout.statistic)! }, period, coverages);
+  const gofs = batch.layout.map((layout) => gofOf(batch, matrix, { layout, offset: offsets.get(layout.statistic)! }, period, coverages));
+  return gofSummaryFrom(batch, gofs, period, coverages);
+}
+
+/** The summary of a period from its statistics' GofResponses (as stored by gofStore.ts). */
+export function gofSummaryFrom(batch: LoadedBatch, gofs: GofResponse[], period: number, coverages: number[]): GofSummaryResponse {
+  const rows = gofs.map((g) => {
     const wide = g.bands.reduce((a, b) => (b.coverage > a.coverage ? b : a), g.bands[0]);
     return {
       statistic: g.statistic,
@@ -477,7 +482,7 @@ export function gofSummaryOf(batch: LoadedBatch, matrix: { chains: number; width
       caution: g.caution,
     };
   });
-  return { batchId: batch.row.id, period, chains: matrix.chains, coverages, rows };
+  return { batchId: batch.row.id, period, chains: gofs[0]?.test.chains ?? 0, coverages, rows };
 }
 
 export function statisticsCsv(batch: LoadedBatch, matrix: { chains: number; width: number; data: Float64Array }, statistic: { layout: StatisticLayout; offset: number }, period: number): string {

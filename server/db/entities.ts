@@ -4,7 +4,7 @@
  * migration that creates its table (see ./migrations.ts).
  */
 import { EndedSessionEntity, UserEntity } from '../auth/entities';
-import { BatchEntity, BatchResultEntity, BatchTieCountsEntity } from '../batches/entities';
+import { BatchEntity, BatchGofEntity, BatchResultEntity, BatchTieCountsEntity } from '../batches/entities';
 import { ActorEntity, CovariateEntity, WaveEntity } from '../data/entities';
 import { InvitationEntity } from '../invitations/entities';
 import { JobChunkEntity, JobEntity } from '../jobs/entities';
@@ -30,4 +30,5 @@ export const entities = [
   FitEntity,
   ...reviewEntities,
   EndedSessionEntity,
+  BatchGofEntity,
 ];

@@ -91,11 +91,12 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
     res.json(boardOf(dataSource, batchOf(req)));
   }));
 
-  router.get(`${B}/board/chart`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/board/chart`, ...member('read'), guarded(async (req, res) => {
     const batch = batchOf(req);
     const card = cardQuery(req);
     checkCard(batch, card.statistic, card.period);
     requireDone(batch);
+    await gof.prepare(dataSource, batch);
     res.json(gof.one(dataSource, batch, card.statistic, card.period));
   }));
 
