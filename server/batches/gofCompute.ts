@@ -14,6 +14,9 @@ export interface StatisticGof {
   sd: number[];
 }
 
+/** How many chain matrices the GOF worker keeps (gofWorker.ts; mirrored by gofStore.ts). */
+export const MATRICES_KEPT = 4;
+
 export interface PeriodMatrix {
   chains: number;
   width: number;

@@ -18,7 +18,7 @@ import { Worker } from 'node:worker_threads';
 import type { DataSource } from 'typeorm';
 import { DEFAULT_COVERAGES } from '../../shared/batches';
 import { syncDb } from '../jobs';
-import { computePeriodGof, type GofBatch, type StatisticGof } from './gofCompute';
+import { MATRICES_KEPT, computePeriodGof, type GofBatch, type StatisticGof } from './gofCompute';
 import { onBatchDone } from './gofHooks';
 import type { GofWorkerReply, GofWorkerRequest } from './gofWorker';
 import { BatchInputError, getBatch, periodMatrix, type LoadedBatch } from './service';
@@ -42,7 +42,9 @@ const fromJson = <T>(text: string): T =>
 
 let worker: Worker | null = null;
 let nextId = 1;
-const pending = new Map<number, { resolve: (r: StatisticGof[]) => void; reject: (e: Error) => void }>();
+const pending = new Map<number, { resolve: (r: StatisticGof[]) => void; reject: (e: Error) => void; resend: () => void }>();
+/** Which matrices the worker holds, in its order (the same rule of eviction as gofWorker.ts). */
+const workerHolds = new Map<string, true>();
 
 function gofWorker(): Worker {
   if (worker) return worker;
@@ -55,12 +57,14 @@ function gofWorker(): Worker {
     const p = pending.get(reply.id);
     if (!p) return;
     pending.delete(reply.id);
+    if (!reply.ok && reply.needMatrix) return p.resend();
     if (reply.ok) p.resolve(reply.results);
     else p.reject(reply.status ? new BatchInputError(reply.message, reply.status) : new Error(`gof worker: ${reply.message}`));
   });
   const fail = (error: Error) => {
     for (const p of pending.values()) p.reject(error);
     pending.clear();
+    workerHolds.clear();
     worker = null;
   };
   w.on('error', fail);
@@ -69,20 +73,46 @@ function gofWorker(): Worker {
   return w;
 }
 
-function inWorker(batch: LoadedBatch, matrix: ReturnType<typeof periodMatrix>, period: number, coverages: number[]): Promise<StatisticGof[]> {
+/**
+ * Computes in the worker. The stored rows of the period are read here (readMatrix) only when the
+ * worker does not hold them yet; they are handed over, not copied.
+ */
+function inWorker(storeId: number, batch: LoadedBatch, readMatrix: () => ReturnType<typeof periodMatrix>, period: number, coverages: number[]): Promise<StatisticGof[]> {
   const plain: GofBatch = { row: { id: batch.row.id }, model: batch.model, layout: batch.layout, observed: batch.observed };
-  const id = nextId++;
+  // Several databases may share the worker (tests): the key names the store too.
+  const matrixKey = `${storeId}:${batch.row.id}:${period}`;
   return new Promise((resolve, reject) => {
-    pending.set(id, { resolve, reject });
-    const message: GofWorkerRequest = { id, batch: plain, period, coverages, matrix };
-    // The matrix is handed over, not copied (it was read for this computation only).
-    gofWorker().postMessage(message, [matrix.data.buffer as ArrayBuffer]);
+    const send = (withMatrix: boolean) => {
+      const id = nextId++;
+      const w = gofWorker();
+      pending.set(id, { resolve, reject, resend: () => send(true) });
+      if (!withMatrix && workerHolds.has(matrixKey)) {
+        w.postMessage({ id, batch: plain, period, coverages, matrixKey } satisfies GofWorkerRequest);
+        return;
+      }
+      let matrix: ReturnType<typeof periodMatrix>;
+      try {
+        matrix = readMatrix();
+      } catch (error) {
+        pending.delete(id);
+        reject(error as Error);
+        return;
+      }
+      workerHolds.delete(matrixKey);
+      workerHolds.set(matrixKey, true);
+      while (workerHolds.size > MATRICES_KEPT) workerHolds.delete(workerHolds.keys().next().value!);
+      w.postMessage({ id, batch: plain, period, coverages, matrixKey, matrix } satisfies GofWorkerRequest, [matrix.data.buffer as ArrayBuffer]);
+    };
+    send(false);
   });
 }
 
 // ---------------------------------------------------------------- the store (one per data source)
 
+let storeCount = 0;
+
 export class GofStore {
+  private readonly id = ++storeCount;
   private readonly inFlight = new Map<string, Promise<StatisticGof[]>>();
   private readonly memory = new Map<string, StatisticGof[]>();
   /** How many period computations this store ran (in the worker or, as a fallback, here). */
@@ -94,10 +124,22 @@ export class GofStore {
 
   /** The stored GOF of one period at the default coverages, or null when not computed yet. */
   stored(batchId: number, period: number): StatisticGof[] | null {
+    // Parsed rows are remembered too: a read then costs a map lookup, not a parse.
+    const memoKey = `${batchId}:${period}:${DEFAULT_KEY}`;
+    const remembered = this.memory.get(memoKey);
+    if (remembered) return remembered;
     const row = syncDb(this.dataSource)
       .prepare(`SELECT "results" FROM "batch_gof" WHERE "batchId" = ? AND "period" = ? AND "coverages" = ?`)
       .get(batchId, period, DEFAULT_KEY) as { results: string } | undefined;
-    return row ? fromJson<StatisticGof[]>(row.results) : null;
+    if (!row) return null;
+    const results = fromJson<StatisticGof[]>(row.results);
+    this.remember(memoKey, results);
+    return results;
+  }
+
+  private remember(key: string, results: StatisticGof[]): void {
+    if (this.memory.size >= MEMORY_LIMIT) this.memory.delete(this.memory.keys().next().value!);
+    this.memory.set(key, results);
   }
 
   /** Keeps a period's GOF at the default coverages (the first one wins; a result never changes). */
@@ -122,12 +164,9 @@ export class GofStore {
     if (running) return running;
     const work = (async () => {
       this.computations++;
-      const results = await inWorker(batch, periodMatrix(this.dataSource, batch, period), period, coverages);
+      const results = await inWorker(this.id, batch, () => periodMatrix(this.dataSource, batch, period), period, coverages);
       if (isDefault) this.store(batch.row.id, period, results);
-      else {
-        if (this.memory.size >= MEMORY_LIMIT) this.memory.delete(this.memory.keys().next().value!);
-        this.memory.set(memoKey, results);
-      }
+      this.remember(memoKey, results);
       return results;
     })();
     this.inFlight.set(memoKey, work);
