@@ -32,7 +32,8 @@
  *   GET  /studies/:studyId/batches/:batchId/report.csv?table=gof|estimates -> text/csv        (members)
  *   GET  /studies/:studyId/batches/:batchId/report.json?compare=2,3        -> ReportJson      (members)
  *
- * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), batch_not_ready 409
+ * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), acknowledgement_required
+ * 400 (a sign-off of a report with concerns without a reason; details: { concerns }), batch_not_ready 409
  * (the batch has not finished), validation_failed 400 for bodies, not_found 404 for a batch, request
  * or statistic that is not in this study.
  */
@@ -108,8 +109,28 @@ export const notificationPreferencesBodySchema = z
   .refine((b) => Object.keys(b).length > 0, 'Send at least one preference to change.');
 export type NotificationPreferencesBody = z.input<typeof notificationPreferencesBodySchema>;
 
+/** The shortest reason accepted when a lead signs off despite a concern (a few words, not "ok"). */
+export const MIN_ACK_REASON = 10;
+
 export const signoffBodySchema = z.object({
   note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  /**
+   * Needed when the report has concerns (ReportStatus.concerns: the fit did not converge, or the
+   * batch ran fewer chains than FEW_CHAINS): the lead's reason for signing off anyway. It goes into
+   * the report. Ignored when there is no concern.
+   */
+  acknowledgement: z
+    .object(
+      {
+        reason: z
+          .string({ error: 'The reason must be text.' })
+          .trim()
+          .min(MIN_ACK_REASON, `Give a reason of at least ${MIN_ACK_REASON} characters for signing off despite the concerns.`)
+          .max(MAX_NOTE, `A reason may have at most ${MAX_NOTE} characters.`),
+      },
+      { error: 'The acknowledgement is an object with a reason.' },
+    )
+    .optional(),
 });
 export type SignoffBody = z.input<typeof signoffBodySchema>;
 
@@ -185,6 +206,18 @@ export interface ReviewRequestDto {
   completedAt: string | null;
 }
 
+/** A concern that a sign-off must acknowledge: a code and the plain sentence shown and printed. */
+export interface SignoffConcern {
+  code: 'not_converged' | 'few_chains';
+  message: string;
+}
+
+export interface SignoffAcknowledgement {
+  /** The concerns the lead acknowledged, as they were worded at signing. */
+  concerns: SignoffConcern[];
+  reason: string;
+}
+
 export interface SignoffDto {
   id: number;
   batchId: number;
@@ -193,6 +226,8 @@ export interface SignoffDto {
   note: string;
   /** Verdict counts when it was signed. */
   counts: VerdictCounts;
+  /** Set when the lead signed off despite concerns (non-converged fit, few chains), with the reason given. */
+  acknowledgement: SignoffAcknowledgement | null;
 }
 
 export interface BoardResponse {
@@ -306,6 +341,8 @@ export interface ReportStatus {
   /** True when a verdict or comment changed after the newest sign-off. */
   changedSinceSignoff: boolean;
   canSign: boolean;
+  /** What a sign-off must acknowledge with a reason (empty: it signs off as is). */
+  concerns: SignoffConcern[];
 }
 
 export interface ReportStatisticJson {
@@ -347,6 +384,23 @@ export interface ReportJson {
   signoffs: SignoffDto[];
   changedSinceSignoff: boolean;
   software: { wavefit: string; node: string; packages: Record<string, string> };
+}
+
+/**
+ * The concerns a sign-off must acknowledge: a fit that did not converge (its convergence check
+ * failed; hand-entered values have none), and a batch with fewer chains than FEW_CHAINS (the
+ * p-values' Monte Carlo resolution is coarse).
+ */
+export function signoffConcerns(input: { converged: boolean | null; maxAbsT: number | null; tauMax: number | null; chains: number; fewChains: number }): SignoffConcern[] {
+  const out: SignoffConcern[] = [];
+  if (input.converged === false) {
+    const figures = [input.maxAbsT !== null ? `largest |t| ${input.maxAbsT.toFixed(3)}` : null, input.tauMax !== null ? `overall ratio ${input.tauMax.toFixed(3)}` : null].filter(Boolean).join(', ');
+    out.push({ code: 'not_converged', message: `The fit did not converge${figures ? ` (${figures})` : ''}; its estimates may not be the method-of-moments solution.` });
+  }
+  if (input.chains < input.fewChains) {
+    out.push({ code: 'few_chains', message: `The batch ran ${input.chains} chains, fewer than ${input.fewChains}; its p-values are coarse (the smallest possible is 1/${input.chains + 1}).` });
+  }
+  return out;
 }
 
 /** Counts of verdicts over a list of cards. */

@@ -106,8 +106,9 @@ export function useBoardMutations(studyId: number, batchId: number) {
       await refresh();
       return res.request;
     },
-    async signOff(note: string): Promise<SignoffDto> {
-      const res = await api.post<{ signoff: SignoffDto }>(`${base}/report/signoff`, { note });
+    /** reason: why the lead signs off despite the report's concerns (sent only when there are concerns). */
+    async signOff(note: string, reason?: string): Promise<SignoffDto> {
+      const res = await api.post<{ signoff: SignoffDto }>(`${base}/report/signoff`, reason !== undefined ? { note, acknowledgement: { reason } } : { note });
       await refresh();
       return res.signoff;
     },

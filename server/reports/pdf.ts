@@ -456,6 +456,11 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
         colour: C.muted,
       });
       if (latest.note) lines.push({ text: `“${latest.note}”`, font: 'text', size: 9.5, colour: C.ink });
+      if (latest.acknowledgement) {
+        lines.push({ text: 'Signed off despite these concerns:', font: 'bold', size: 9.5, colour: C.unsure });
+        for (const c of latest.acknowledgement.concerns) lines.push({ text: `• ${c.message}`, font: 'text', size: 9, colour: C.ink });
+        lines.push({ text: `Reason given: “${latest.acknowledgement.reason}”`, font: 'text', size: 9.5, colour: C.ink });
+      }
       if (report.changedSinceSignoff) lines.push({ text: 'Caution: verdicts or comments changed after this sign-off; this copy shows them as they are now.', font: 'bold', size: 9, colour: C.unsure });
     } else {
       lines.push({ text: 'Draft: not signed off', font: 'bold', size: 11, colour: C.unsure });

@@ -16,6 +16,7 @@ import {
   type ParsedVerdictBody,
   type PersonRef,
   type ReviewRequestDto,
+  type SignoffAcknowledgement,
   type SignoffDto,
   type Verdict,
   type VerdictChange,
@@ -409,6 +410,7 @@ interface SignoffDbRow {
   note: string;
   counts: string;
   signedAt: string;
+  acknowledgement: string | null;
 }
 
 function signoffDto(r: SignoffDbRow): SignoffDto {
@@ -419,6 +421,7 @@ function signoffDto(r: SignoffDbRow): SignoffDto {
     signedAt: iso(r.signedAt)!,
     note: r.note,
     counts: JSON.parse(r.counts) as VerdictCounts,
+    acknowledgement: r.acknowledgement ? (JSON.parse(r.acknowledgement) as SignoffAcknowledgement) : null,
   };
 }
 
@@ -427,15 +430,22 @@ export function signoffsOf(db: SyncDb, batchId: number): SignoffDto[] {
   return (db.prepare(`SELECT * FROM "report_signoffs" WHERE "batchId" = ? ORDER BY "id" DESC`).all(batchId) as SignoffDbRow[]).map(signoffDto);
 }
 
-export async function signOff(dataSource: DataSource, batch: LoadedBatch, lead: { id: number; name: string }, note: string): Promise<SignoffDto> {
+/** acknowledgement: the concerns the lead signed off despite, with the reason (null when there were none). */
+export async function signOff(
+  dataSource: DataSource,
+  batch: LoadedBatch,
+  lead: { id: number; name: string },
+  note: string,
+  acknowledgement: SignoffAcknowledgement | null = null,
+): Promise<SignoffDto> {
   requireDone(batch);
   const db = syncDb(dataSource);
   const dto = await inSyncTransaction(db, (tx) => {
     const counts = verdictCounts(tx, batch);
     const signedAt = new Date();
     const result = tx
-      .prepare(`INSERT INTO "report_signoffs" ("studyId", "batchId", "signedById", "signedByName", "note", "counts", "signedAt") VALUES (?, ?, ?, ?, ?, ?, ?)`)
-      .run(batch.row.studyId, batch.row.id, lead.id, lead.name, note, JSON.stringify(counts), sqlNow(signedAt));
+      .prepare(`INSERT INTO "report_signoffs" ("studyId", "batchId", "signedById", "signedByName", "note", "counts", "signedAt", "acknowledgement") VALUES (?, ?, ?, ?, ?, ?, ?, ?)`)
+      .run(batch.row.studyId, batch.row.id, lead.id, lead.name, note, JSON.stringify(counts), sqlNow(signedAt), acknowledgement ? JSON.stringify(acknowledgement) : null);
     const id = Number(result.lastInsertRowid);
     recordEvent(tx, 'report_signed', batch.row.studyId, batch.row.id, {
       signoffId: id,
