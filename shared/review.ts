@@ -294,22 +294,31 @@ export interface CompareColumn {
   tauMax: number | null;
 }
 
+/** Significance of an estimate by its t-statistic (estimate / SE) against the normal quantiles: "p1" |t| >= 2.576, "p5" |t| >= 1.960, "none" below. */
+export type Significance = 'p1' | 'p5' | 'none';
+
 export interface CompareEstimateCell {
   value: number;
   se: number | null;
+  /** The convergence t-ratio of the fit (how well the fit converged; not a test of the parameter). */
   convergenceT: number | null;
+  /** t-statistic estimate / SE (null without an SE, and for rate parameters, which are not tested against 0). */
+  t: number | null;
+  significance: Significance | null;
 }
 export interface CompareEstimateRow {
   key: string;
   label: string;
   kind: 'rate' | 'objective';
   cells: (CompareEstimateCell | null)[];
-  /** Column whose convergence t-ratio is smallest in absolute value (null when fewer than two have one, or a tie). */
-  better: number | null;
 }
 
 export interface ComparePCell {
   pValue: number;
+  /** Monte Carlo standard error of the p-value, sqrt(p(1 - p) / N) for N chains. */
+  mcSe: number;
+  /** The Mahalanobis distance of the observed statistic. */
+  distance: number;
   verdict: Verdict | null;
 }
 export interface ComparePRow {
@@ -317,8 +326,17 @@ export interface ComparePRow {
   label: string;
   period: number;
   cells: (ComparePCell | null)[];
-  /** Column with the highest p-value (null when fewer than two have one, or a tie). */
+  /** Column whose p-value exceeds every other by more than the rule's margin (null otherwise). */
   better: number | null;
+  /** "beyond": one column's p-value is higher beyond Monte Carlo error; "within": the differences are within it; null: fewer than two p-values. */
+  difference: 'beyond' | 'within' | null;
+}
+
+/** Per column: statistics failing at 0.05, how many were tested, and the summed Mahalanobis distance. */
+export interface CompareOverall {
+  failing: number;
+  tested: number;
+  distanceSum: number | null;
 }
 
 export interface CompareResponse {
@@ -328,7 +346,49 @@ export interface CompareResponse {
   pValues: ComparePRow[];
   /** Verdict counts per column (null for a fit without a batch). */
   verdicts: (VerdictCounts | null)[];
+  /** Per column (null for a fit without a batch). */
+  overall: (CompareOverall | null)[];
+  /** The rule for marking a p-value "better", in words. */
+  betterRule: string;
   notes: string[];
+}
+
+/** Two-sided normal quantiles for 5% and 1% (Phi^-1(0.975), Phi^-1(0.995)). */
+export const Z_5 = 1.959964;
+export const Z_1 = 2.575829;
+/** A p-value is marked better only when it exceeds each other by more than this many combined Monte Carlo SEs. */
+export const BETTER_MC_SE_FACTOR = 2;
+export const FAIL_LEVEL = 0.05;
+
+export const SIGNIFICANCE_WORDS: Record<Significance, string> = {
+  p1: 'significant at 1%',
+  p5: 'significant at 5%',
+  none: 'not significant at 5%',
+};
+
+export function significanceOf(t: number | null): Significance | null {
+  if (t === null || !Number.isFinite(t)) return null;
+  const a = Math.abs(t);
+  return a >= Z_1 ? 'p1' : a >= Z_5 ? 'p5' : 'none';
+}
+
+/** Monte Carlo standard error of a p-value estimated from N chains: sqrt(p(1 - p) / N). */
+export function monteCarloSe(p: number, chains: number): number {
+  if (!(chains > 0)) return NaN;
+  return Math.sqrt(Math.max(0, p * (1 - p)) / chains);
+}
+
+/**
+ * The column whose p-value is higher than every other present one by more than
+ * BETTER_MC_SE_FACTOR x sqrt(se_i^2 + se_j^2), and whether the row's differences are beyond or within
+ * Monte Carlo error.
+ */
+export function betterPValue(cells: ReadonlyArray<{ pValue: number; mcSe: number } | null>): { better: number | null; difference: 'beyond' | 'within' | null } {
+  const present = cells.map((c, i) => [c, i] as const).filter((e): e is readonly [{ pValue: number; mcSe: number }, number] => e[0] !== null && Number.isFinite(e[0].pValue));
+  if (present.length < 2) return { better: null, difference: null };
+  const top = present.reduce((a, b) => (b[0].pValue > a[0].pValue ? b : a));
+  const clear = present.every(([c, i]) => i === top[1] || top[0].pValue - c.pValue > BETTER_MC_SE_FACTOR * Math.sqrt(top[0].mcSe ** 2 + c.mcSe ** 2));
+  return clear ? { better: top[1], difference: 'beyond' } : { better: null, difference: 'within' };
 }
 
 // ---------- report ----------
@@ -411,22 +471,6 @@ export function countVerdicts(verdicts: ReadonlyArray<Verdict | null>): VerdictC
     else counts[v]++;
   }
   return counts;
-}
-
-/** Index of the largest (or smallest) value, or null when fewer than two are given or the best is shared. */
-export function bestIndex(values: ReadonlyArray<number | null>, prefer: 'higher' | 'lower'): number | null {
-  const present = values.map((v, i) => [v, i] as const).filter((e): e is readonly [number, number] => e[0] !== null && Number.isFinite(e[0]));
-  if (present.length < 2) return null;
-  const sign = prefer === 'higher' ? 1 : -1;
-  let best = present[0];
-  let shared = false;
-  for (const e of present.slice(1)) {
-    if (sign * e[0] > sign * best[0]) {
-      best = e;
-      shared = false;
-    } else if (e[0] === best[0]) shared = true;
-  }
-  return shared ? null : best[1];
 }
 
 /** Parses "1,2,3" (a query parameter) into distinct positive ids; throws with a plain message. */

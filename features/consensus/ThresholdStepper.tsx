@@ -12,24 +12,9 @@ import { Button } from '../ui/Button';
 import { Text } from '../ui/Text';
 import { colors } from '../ui/theme';
 import { fonts, radius, space, touchTarget } from '../ui/tokens';
+import { clampThreshold, thresholdAt, thresholdForKey } from './threshold';
 
-export const clampThreshold = (v: number, min: number, step: number) => Math.min(1, Math.max(min, Math.round(v / step) * step));
-
-/** The threshold at a horizontal position on the track (left edge = min, right edge = 1), or null when the position is unknown. */
-export function thresholdAt(x: number, trackLeft: number, trackWidth: number, min: number, step: number): number | null {
-  if (![x, trackLeft, trackWidth].every(Number.isFinite) || trackWidth <= 0) return null;
-  const share = Math.min(1, Math.max(0, (x - trackLeft) / trackWidth));
-  return Number(clampThreshold(min + share * (1 - min), min, step).toFixed(2));
-}
-
-/** The new value for a key pressed on the focused track, or null for other keys. */
-export function thresholdForKey(key: string, value: number, min: number, step: number): number | null {
-  const moves: Record<string, number> = { ArrowRight: step, ArrowUp: step, ArrowLeft: -step, ArrowDown: -step, PageUp: 2 * step, PageDown: -2 * step };
-  if (key === 'Home') return min;
-  if (key === 'End') return 1;
-  if (!(key in moves)) return null;
-  return Number(clampThreshold(value + moves[key], min, step).toFixed(2));
-}
+export { clampThreshold, thresholdAt, thresholdForKey } from './threshold';
 
 export function ThresholdStepper({ value, onChange, min = 0.05, step = 0.05 }: { value: number; onChange: (v: number) => void; min?: number; step?: number }) {
   const track = useRef<View>(null);
