@@ -176,16 +176,25 @@ describe('the lead on a desktop', () => {
       const cmp = await apiGet<CompareResponse>(page, `/studies/${studyId}/compare?batches=${first},${second}`);
       const rows = table.getByRole('row');
       expect(await rows.count()).toBe(cmp.pValues.length + 1);
-      const betterCount = cmp.pValues.filter((r) => r.better !== null).length + cmp.estimates.filter((r) => r.better !== null).length;
+      // "better" only on p-values, and only where the difference exceeds the Monte Carlo error.
+      const betterCount = cmp.pValues.filter((r) => r.better !== null).length;
       await expect.poll(() => page.getByText('better', { exact: true }).count()).toBe(betterCount);
       await screenshot(page, 'compare', 'desktop');
 
-      // Sign off and download the PDF of the first compared batch, with the comparison.
+      // Sign off and download the PDF of the first compared batch, with the comparison. The demo
+      // batches ran 100 chains (fewer than the few-chains caution), so the sign-off needs a reason.
       await page.getByRole('button', { name: 'Fit report with this comparison' }).click();
       await page.waitForURL(/\/report\?/);
+      await page.getByTestId('signoff-concerns').getByText(/100 chains, fewer than 500/).waitFor();
       await page.getByRole('button', { name: 'Sign off the report' }).click();
       await page.getByRole('button', { name: 'Yes, sign off' }).click();
+      await page.getByText('Tick the acknowledgement first').waitFor();
+      expect((await apiGet<{ signoffs: unknown[] }>(page, `/studies/${studyId}/batches/${first}/report`)).signoffs).toEqual([]);
+      await page.getByRole('checkbox', { name: /I have read the concerns above/ }).click();
+      await page.getByLabel(/Reason for signing off despite the concerns/).fill('Pilot run for the season review; 1000 chains next.');
+      await page.getByRole('button', { name: 'Yes, sign off' }).click();
       await page.getByText(/^Signed off by Ines Varga on/).first().waitFor();
+      await page.getByText('Reason given: “Pilot run for the season review; 1000 chains next.”').waitFor();
       await screenshot(page, 'report', 'desktop');
       const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: /Download the PDF report/ }).click()]);
       const file = join(dir, 'report.pdf');
@@ -193,6 +202,7 @@ describe('the lead on a desktop', () => {
       const text = spawnSync('pdftotext', [file, '-'], { encoding: 'utf8' });
       expect(text.status).toBe(0);
       expect(text.stdout).toMatch(/Signed off by Ines Varga/);
+      expect(text.stdout.replace(/\s+/g, ' ')).toContain('Reason given: “Pilot run for the season review; 1000 chains next.”');
       expect(text.stdout).toContain('Comparison of models');
       // The team was told by e-mail (the fake transport's outbox), the signer was not.
       const signed = server.mailer.messages().filter((m) => m.subject.startsWith('Fit report signed off'));
