@@ -1,7 +1,7 @@
 /**
  * Migration: a sign-off may carry an acknowledgement (report_signoffs.acknowledgement, JSON of
  * SignoffAcknowledgement: the concerns acknowledged and the lead's reason), required when the fit
- * did not converge or the batch ran few chains. Listed in server/db/migrations/index.ts after the review board.
+ * did not converge or the batch ran few chains. Listed in server/db/migrations.ts after the review board.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

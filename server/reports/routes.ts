@@ -10,7 +10,7 @@ import { parseIdList, signoffBodySchema, type ReportStatus, type SignoffBody } f
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
 import { syncDb } from '../jobs/db';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
 import { guarded, type ReviewRouter } from '../review/routes';
 import { changedSince, loadReviewBatch, requireDone, signOff, signoffsOf, verdictCounts } from '../review/service';

@@ -4,7 +4,7 @@
  * a trivial query.
  */
 import { Router } from 'express';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function healthRouter(deps: RouteDeps): Router {
   const router = Router();
