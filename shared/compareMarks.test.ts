@@ -4,7 +4,7 @@
  *   checked against scipy.stats.norm.ppf from Debian's scipy);
  * - the Monte Carlo standard error of a p-value from N chains is sqrt(p(1 - p) / N), the binomial
  *   standard deviation over N (Davison & Hinkley 1997, Bootstrap Methods and their Application,
- *   section 4.2.5);
+ *   section 4.2.5), with p kept 1/(N + 1) away from 0 and 1 (our choice, so an edge p-value shows an error);
  * - "better" only when the top p-value exceeds each other by more than 2 x sqrt(se_a^2 + se_b^2)
  *   (our stated rule: about a two-sided 95% margin for a difference of two independent estimates).
  */
@@ -32,7 +32,9 @@ describe('Monte Carlo error of a p-value and the "better" mark', () => {
   it('is the binomial standard deviation over N', () => {
     expect(monteCarloSe(0.5, 100)).toBeCloseTo(0.05, 12);
     expect(monteCarloSe(0.1, 1000)).toBeCloseTo(Math.sqrt(0.09 / 1000), 12);
-    expect(monteCarloSe(0, 100)).toBe(0);
+    // At the edge p is kept 1/(N + 1) away from 0 and 1: no p-value claims a zero error.
+    expect(monteCarloSe(0, 100)).toBeCloseTo(Math.sqrt((1 / 101) * (100 / 101) / 100), 12);
+    expect(monteCarloSe(1, 100)).toBeCloseTo(monteCarloSe(0, 100), 12);
   });
 
   it('marks a p-value only beyond twice the combined error', () => {

@@ -372,10 +372,16 @@ export function significanceOf(t: number | null): Significance | null {
   return a >= Z_1 ? 'p1' : a >= Z_5 ? 'p5' : 'none';
 }
 
-/** Monte Carlo standard error of a p-value estimated from N chains: sqrt(p(1 - p) / N). */
+/**
+ * Monte Carlo standard error of a p-value estimated from N chains: sqrt(p(1 - p) / N), with p kept
+ * within [1/(N + 1), N/(N + 1)] so that a p-value at the edge (0 or 1 of N) does not claim to have no
+ * error at all.
+ */
 export function monteCarloSe(p: number, chains: number): number {
-  if (!(chains > 0)) return NaN;
-  return Math.sqrt(Math.max(0, p * (1 - p)) / chains);
+  if (!(chains > 0) || !Number.isFinite(p)) return NaN;
+  const edge = 1 / (chains + 1);
+  const q = Math.min(1 - edge, Math.max(edge, p));
+  return Math.sqrt((q * (1 - q)) / chains);
 }
 
 /**

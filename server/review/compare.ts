@@ -202,6 +202,6 @@ export function compareItems(
   if (periodsDiffer || new Set(pValues.map((r) => r.cells.filter((c) => c !== null).length)).size > 1) {
     notes.push('The models were not checked on the same statistics and periods, so their failure counts and summed distances are not directly comparable.');
   }
-  const betterRule = `A p-value is marked better only when it exceeds each other model's by more than ${BETTER_MC_SE_FACTOR} combined Monte Carlo standard errors, ${BETTER_MC_SE_FACTOR} × sqrt(se1² + se2²), with se = sqrt(p(1 - p) / N) for N chains.`;
+  const betterRule = `A p-value is marked better only when it exceeds each other model's by more than ${BETTER_MC_SE_FACTOR} combined Monte Carlo standard errors, ${BETTER_MC_SE_FACTOR} × sqrt(se1² + se2²), with se = sqrt(p(1 - p) / N) for N chains (p kept within 1/(N + 1) of 0 and 1).`;
   return { studyId, columns: items.map((it) => it.column), estimates, pValues, verdicts, overall, betterRule, notes };
 }

@@ -372,10 +372,10 @@ describe('comparing two models', () => {
       both.forEach((g, i) => gofs[i].push({ p: g.pValue, n: g.chains, d: g.distance }));
       expect(row.cells.map((c) => c!.pValue)).toEqual(both.map((g) => g.pValue));
     }
-    // Monte Carlo SE of each p-value: the binomial standard deviation over N (scipy).
+    // Monte Carlo SE of each p-value: the binomial standard deviation over N (scipy), p kept 1/(N + 1) from the edges.
     const flat = gofs.flat();
     const sd = JSON.parse(
-      spawnSync('/usr/bin/python3', ['-c', 'import json,sys; from scipy.stats import binom; print(json.dumps([float(binom.std(n, p)) / n for p, n in json.loads(sys.argv[1])]))', JSON.stringify(flat.map((g) => [g.p, g.n]))], { encoding: 'utf8' }).stdout,
+      spawnSync('/usr/bin/python3', ['-c', 'import json,sys; from scipy.stats import binom; print(json.dumps([float(binom.std(n, p)) / n for p, n in json.loads(sys.argv[1])]))', JSON.stringify(flat.map((g) => [Math.min(g.n / (g.n + 1), Math.max(1 / (g.n + 1), g.p)), g.n]))], { encoding: 'utf8' }).stdout,
     ) as number[];
     let k = 0;
     for (let i = 0; i < 2; i++) {
