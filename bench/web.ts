@@ -135,6 +135,8 @@ export const webSections: BenchSection[] = [
             `largest chunk: ${kB(largest.raw)} raw, ${kB(largest.gzip)} gzip (target at most 400 kB compressed; before issue 19 one bundle of ${kB(BEFORE_ISSUE_19.largestChunkRaw)} raw, ${kB(BEFORE_ISSUE_19.largestChunkGzip)} gzip, sent uncompressed: ${kB(BEFORE_ISSUE_19.largestChunkSent)})`,
           );
         }
+        const route = chunks.find((c) => !/\/(entry|__common|__expo-metro-runtime)-[0-9a-f]{32}\.js$/.test(c.path));
+        if (route) print(`largest route chunk (not the entry or the shared chunk): ${kB(route.raw)} raw, ${kB(route.gzip)} gzip  ${route.path}`);
         print(`all chunks together: ${kB(chunks.reduce((s, c) => s + c.raw, 0))} raw, ${kB(chunks.reduce((s, c) => s + c.gzip, 0))} gzip`);
       } finally {
         await server.close();

@@ -221,6 +221,15 @@ describe('exports', () => {
     expect(flat).toContain('Reason given: “A pilot check for the crew meeting; the 1000-chain run follows next week.”');
     expect(report.signoffs[0].acknowledgement?.reason).toBe('A pilot check for the crew meeting; the 1000-chain run follows next week.');
     expect(pdfText).toContain('Comparison of models');
+    // The comparison's honest marks: convergence per model, p ± Monte Carlo SE, the overall lines and the caution.
+    const cmpText = flat.slice(flat.indexOf('Comparison of models'));
+    expect(cmpText).toContain('Fit converged');
+    expect(cmpText).toMatch(/p = \S+ ± \d\.\d{3}/);
+    expect(cmpText).toContain('Failing at 0.05');
+    expect(cmpText).toContain('Summed distance');
+    expect(cmpText).toContain('not independent');
+    expect(cmpText).toContain('2 combined Monte Carlo standard errors');
+    if (process.env.WAVEFIT_KEEP_PDF) writeFileSync(process.env.WAVEFIT_KEEP_PDF, res.body as Buffer);
     expect(pdfText).toContain('Batch seed');
     expect(pdfText).toContain('31');
     expect(pdfText).toContain(process.version);
