@@ -6,7 +6,8 @@
  *   verdict with a note and a comment, and sees the summary change; a colleague's save in between
  *   shows as a conflict the reviewer can resolve;
  * - on a desktop the lead moves the consensus threshold with the keyboard, compares the two models,
- *   signs off and downloads the PDF report.
+ *   signs off (the demo fits did not converge and ran 100 chains, so the sign-off is refused without
+ *   an acknowledged reason and accepted with one) and downloads the PDF report, whose text carries the reason.
  * Expected values come from the API (read over HTTP with the same account), never from screenshots.
  */
 import { spawnSync } from 'node:child_process';
@@ -185,10 +186,19 @@ describe('the lead on a desktop', () => {
       // batches ran 100 chains (fewer than the few-chains caution), so the sign-off needs a reason.
       await page.getByRole('button', { name: 'Fit report with this comparison' }).click();
       await page.waitForURL(/\/report\?/);
+      // The demo fits did not converge and their batches ran 100 chains: both are listed.
       await page.getByTestId('signoff-concerns').getByText(/100 chains, fewer than 500/).waitFor();
+      expect(await page.getByTestId('signoff-concerns').innerText()).toMatch(/The fit did not converge/);
+      // The server refuses a sign-off without a reason, whatever the client does.
+      const bare = await page.evaluate(async (path) => {
+        const res = await fetch(path, { method: 'POST', credentials: 'include', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ note: 'no reason' }) });
+        return { status: res.status, code: ((await res.json()) as { error: { code: string } }).error.code };
+      }, `/api/studies/${studyId}/batches/${first}/report/signoff`);
+      expect(bare).toEqual({ status: 400, code: 'acknowledgement_required' });
       await page.getByRole('button', { name: 'Sign off the report' }).click();
       await page.getByRole('button', { name: 'Yes, sign off' }).click();
       await page.getByText('Tick the acknowledgement first').waitFor();
+      await screenshot(page, 'report-refused', 'desktop');
       expect((await apiGet<{ signoffs: unknown[] }>(page, `/studies/${studyId}/batches/${first}/report`)).signoffs).toEqual([]);
       await page.getByRole('checkbox', { name: /I have read the concerns above/ }).click();
       await page.getByLabel(/Reason for signing off despite the concerns/).fill('Pilot run for the season review; 1000 chains next.');
