@@ -12,4 +12,4 @@ export {
   type JobQueueOptions,
   type JobStatus,
 } from './queue';
-export { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';
+export { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from '../db/sync';

@@ -10,7 +10,7 @@ import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { DataSource } from 'typeorm';
 import type { JobState } from './entities';
-import { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';
+import { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from '../db/sync';
 import type { FromWorker, ToWorker } from './protocol';
 import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
 

@@ -8,7 +8,7 @@ import { can } from '../../shared/api';
 import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
 import { guarded, type ReviewRouter } from '../review/routes';

@@ -20,7 +20,7 @@ import {
   type VerdictCounts,
 } from '../../shared/review';
 import { getBatch, type LoadedBatch } from '../batches/service';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import type { GofCache } from './gofData';
 import { cardsOf, ReviewError, verdictsOf } from './service';
 

@@ -17,7 +17,7 @@ import {
 } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, badRequest, forbidden, idParam, notFound, validate } from '../errors';
-import { inSyncTransaction, syncDb } from '../jobs/db';
+import { inSyncTransaction, syncDb } from '../db/sync';
 import { createNotifier, registerNotifier, type Notifier } from '../notify/notifier';
 import { preferencesOf, updatePreferences } from '../notify/preferences';
 import type { RouteDeps } from '../deps';

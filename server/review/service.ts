@@ -2,7 +2,7 @@
  * The review board on the server: cards (statistic x period of a finished batch), verdicts with
  * optimistic concurrency and a full history, comment threads, review requests and the inbox, and
  * report sign-offs. Writes go through the synchronous better-sqlite3 handle inside one transaction
- * each (server/jobs/db.ts explains why), so a verdict and its history row commit together or not at all.
+ * each (server/db/sync.ts explains why), so a verdict and its history row commit together or not at all.
  */
 import type { DataSource } from 'typeorm';
 import type { ApiErrorCode } from '../../shared/api';
@@ -23,8 +23,7 @@ import {
   type VerdictDto,
 } from '../../shared/review';
 import { getBatch, type LoadedBatch } from '../batches/service';
-import { inSyncTransaction, parseSqlDate, sqlNow, syncDb } from '../jobs/db';
-import type { SyncDb } from '../jobs/registry';
+import { inSyncTransaction, parseSqlDate, sqlNow, syncDb, type SyncDb } from '../db/sync';
 import type { VerdictHistoryRow } from './entities';
 import { recordEvent, wakeAfterCommit, type ReportSignedPayload, type ReviewRequestedPayload } from '../notify/notifier';
 
