@@ -1,21 +1,20 @@
 /**
  * Demo data: the Harbourside volunteer rescue station (invented). One user per role and one study
- * with three waves of advice ties among 24 crew members and their covariates (./demo-data.ts).
- * Idempotent: re-running finds what exists and adds only what is missing.
- *
- *   npm run seed        (uses WAVEFIT_DB, default data/wavefit.sqlite)
+ * with three waves of advice ties among 24 crew members and their covariates (./waves.ts), and on
+ * request fitted models and batches for the review board (./results.ts).
+ * Idempotent: re-running finds what exists and adds only what is missing. `npm run seed` runs it
+ * (server/db/seed.ts).
  */
 import type { DataSource } from 'typeorm';
 import type { StudyRole } from '../../shared/api';
 import { hashPassword } from '../auth/passwords';
-import { DEFAULT_PASSWORD_HASH, loadConfig, type PasswordHashConfig } from '../config';
+import { DEFAULT_PASSWORD_HASH, type PasswordHashConfig } from '../config';
 import { parseUpload } from '../data/parse';
 import { replaceStudyData } from '../data/store';
 import { dataUploadBodySchema } from '../../shared/data';
 import { stopJobQueue } from '../jobs';
-import { seedDemoResults, type DemoResults } from '../review/demo';
-import { openDataSource } from './dataSource';
-import { demoUpload } from './demo-data';
+import { seedDemoResults, type DemoResults } from './results';
+import { demoUpload } from './waves';
 import { MembershipEntity } from '../team/entities';
 import { StudyEntity } from '../studies/entities';
 import { UserEntity } from '../auth/entities';
@@ -51,7 +50,7 @@ export interface SeedResult {
   createdData: boolean;
   users: readonly DemoUser[];
   password: string;
-  /** With options.withResults: the demo models, fits and batches (server/review/demo.ts). */
+  /** With options.withResults: the demo models, fits and batches (./results.ts). */
   results?: DemoResults;
 }
 
@@ -120,25 +119,4 @@ export function describeSeed(result: SeedResult): string {
     ...result.users.map((u) => `  ${u.role.padEnd(13)} ${u.email}`),
   ];
   return lines.join('\n');
-}
-
-async function main(): Promise<void> {
-  const config = loadConfig();
-  const dataSource = await openDataSource({ database: config.dbPath });
-  try {
-    const result = await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: true });
-    console.log(`Database: ${config.dbPath}`);
-    console.log(describeSeed(result));
-  } finally {
-    await stopJobQueue(dataSource);
-    await dataSource.destroy();
-  }
-}
-
-// Run as a script (npm run seed), not when imported by main.ts or tests.
-if (/[\\/]server[\\/]db[\\/]seed\.ts$/.test(process.argv[1] ?? '')) {
-  main().catch((error) => {
-    console.error(error);
-    process.exit(1);
-  });
 }
