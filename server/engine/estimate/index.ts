@@ -30,7 +30,7 @@ export {
   symmetricEigen,
   symmetricPseudoInverse,
   type Matrix,
-} from './linalg';
+} from '../linalg';
 
 export interface FittedParameter extends ParameterInfo {
   /** The estimate, or the fixed value. */

@@ -29,7 +29,7 @@ import {
   transpose,
   zeros,
   type Matrix,
-} from './linalg';
+} from '../linalg';
 
 /** Stream keys: the first key of every random stream says which phase drew it. */
 export const PHASE_1 = 1;
