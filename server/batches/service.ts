@@ -20,10 +20,12 @@ import {
   type StatisticLayout,
 } from '../../shared/batches';
 import { effectInfo, type EffectId } from '../../shared/effects';
+import { TIE_MISSING } from '../data/parse';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
 import { compareNetworks, consensusAtThreshold, consensusTopL, TieFrequencies } from '../engine/consensus';
 import { buildEffects } from '../engine/effects';
 import { deriveSeed } from '../engine/prng';
+import { waveChange } from '../engine/waveChange';
 import { NetworkState } from '../engine/state';
 import { auxStatistic } from '../engine/statistics';
 import { componentsOutside, envelope } from '../engine/gof/envelope';
@@ -519,16 +521,7 @@ export async function consensusOf(
     : consensusAtThreshold(freq, threshold, net.compareMask);
   const cmp = compareNetworks(n, consensus, net.end, net.compareMask);
   // Persistence: pairs observed in both waves.
-  const startWave = data.waves[period - 1];
-  const endWave = data.waves[period];
-  const both = new Uint8Array(n * n);
-  for (let k = 0; k < n * n; k++) both[k] = startWave[k] !== 2 && endWave[k] !== 2 && k % (n + 1) !== 0 ? 1 : 0;
-  const persistence = compareNetworks(
-    n,
-    startWave.map((v) => (v === 1 ? 1 : 0)),
-    endWave.map((v) => (v === 1 ? 1 : 0)),
-    both,
-  ).jaccard;
+  const persistence = waveChange(n, data.waves[period - 1], data.waves[period], { missing: TIE_MISSING }).jaccard;
   const ties: Array<[number, number, number]> = [];
   let observedTies = 0;
   for (let i = 0; i < n; i++) {
