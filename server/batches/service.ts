@@ -22,6 +22,7 @@ import {
 import { effectInfo, type EffectId } from '../../shared/effects';
 import { TIE_MISSING } from '../data/parse';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
+import { badRequest, conflict, notFound } from '../errors';
 import { compareNetworks, consensusAtThreshold, consensusTopL, TieFrequencies } from '../engine/consensus';
 import { buildEffects } from '../engine/effects';
 import { deriveSeed } from '../engine/prng';
@@ -35,18 +36,6 @@ import { BATCH_JOB_KIND, float64FromBlob, int32FromBlob, type BatchJobPayload } 
 import { auxOptionsOf, buildLayout, layoutOffsets, resolveMaxima, type ResolvedMaxima } from './layout';
 import { fitModel, FitNotUsable } from './fitModel';
 import { periodCovariates, periodNetworks } from '../data/periods';
-
-/** A refusal with a plain message; the routes turn it into a 400 (or the given status). */
-export class BatchInputError extends Error {
-  constructor(
-    message: string,
-    readonly status = 400,
-    readonly code: 'bad_request' | 'not_found' | 'validation_failed' = 'bad_request',
-    readonly details?: unknown,
-  ) {
-    super(message);
-  }
-}
 
 /** Above this many expected ministeps in one period of one chain, a batch is refused as a runaway. */
 export const MAX_EXPECTED_MINISTEPS = 2_000_000;
@@ -82,9 +71,7 @@ export interface CreateBatchInput {
 function checkRateCount(model: BatchModel, data: LoadedStudyData): void {
   const M = data.waves.length;
   if (model.rates.length !== M - 1) {
-    throw new BatchInputError(
-      `The study has ${M} waves, so the model needs ${M - 1} rate${M - 1 === 1 ? '' : 's'} (one per period); ${model.rates.length} ${model.rates.length === 1 ? 'was' : 'were'} given.`,
-    );
+    throw badRequest(`The study has ${M} waves, so the model needs ${M - 1} rate${M - 1 === 1 ? '' : 's'} (one per period); ${model.rates.length} ${model.rates.length === 1 ? 'was' : 'were'} given.`);
   }
 }
 
@@ -100,14 +87,12 @@ function checkModelAgainstData(model: BatchModel, data: LoadedStudyData, periods
         covs[p - 1].centring,
       );
     } catch (error) {
-      throw new BatchInputError(`The model does not fit this study's data: ${(error as Error).message.replace(/^effects: /, '')}`);
+      throw badRequest(`The model does not fit this study's data: ${(error as Error).message.replace(/^effects: /, '')}`);
     }
     const rate = model.rates[p - 1] ?? 0;
     const expected = n * rate;
     if (expected > MAX_EXPECTED_MINISTEPS) {
-      throw new BatchInputError(
-        `The rate of period ${p} (${rate}) means about ${Math.round(expected)} ministeps per chain for ${n} actors, more than ${MAX_EXPECTED_MINISTEPS}; check the rates.`,
-      );
+      throw badRequest(`The rate of period ${p} (${rate}) means about ${Math.round(expected)} ministeps per chain for ${n} actors, more than ${MAX_EXPECTED_MINISTEPS}; check the rates.`);
     }
   }
 }
@@ -124,14 +109,14 @@ function observedVectors(data: LoadedStudyData, periods: number[], statistics: A
   return observed;
 }
 
-/** Makes a batch and queues its job. Refusals throw BatchInputError and store nothing. */
+/** Makes a batch and queues its job. Refusals throw ApiError and store nothing. */
 export async function createBatch(dataSource: DataSource, input: CreateBatchInput): Promise<number> {
   const { studyId, userId, body } = input;
   let data: LoadedStudyData;
   try {
     data = await loadStudyData(dataSource, studyId);
   } catch {
-    throw new BatchInputError('This study has no data yet: upload at least two waves before simulating.');
+    throw badRequest('This study has no data yet: upload at least two waves before simulating.');
   }
   const M = data.waves.length;
   let model: BatchModel;
@@ -140,10 +125,10 @@ export async function createBatch(dataSource: DataSource, input: CreateBatchInpu
     try {
       resolved = fitModel(dataSource, studyId, body.fitId, M - 1);
     } catch (error) {
-      if (error instanceof FitNotUsable) throw new BatchInputError(error.message, 409);
+      if (error instanceof FitNotUsable) throw conflict('batch_not_ready', error.message);
       throw error;
     }
-    if (!resolved) throw new BatchInputError('Fit not found in this study.', 404, 'not_found');
+    if (!resolved) throw notFound('Fit not found in this study.');
     model = resolved;
   } else {
     const m = body.model!;
@@ -164,21 +149,21 @@ export async function createBatch(dataSource: DataSource, input: CreateBatchInpu
   const periods = body.periods ? [...new Set(body.periods)].sort((a, b) => a - b) : covered;
   const badPeriod = periods.find((p) => p > M - 1);
   if (badPeriod !== undefined) {
-    throw new BatchInputError(`The study has ${M - 1} period${M - 1 === 1 ? '' : 's'} (${M} waves); there is no period ${badPeriod}.`);
+    throw badRequest(`The study has ${M - 1} period${M - 1 === 1 ? '' : 's'} (${M} waves); there is no period ${badPeriod}.`);
   }
   const uncovered = periods.find((p) => model.rates[p - 1] == null);
   if (uncovered !== undefined) {
-    throw new BatchInputError(`Fit ${model.fitId} does not cover period ${uncovered}; it covers period${covered.length === 1 ? '' : 's'} ${covered.join(', ')}.`);
+    throw badRequest(`Fit ${model.fitId} does not cover period ${uncovered}; it covers period${covered.length === 1 ? '' : 's'} ${covered.join(', ')}.`);
   }
   checkModelAgainstData(model, data, periods);
   const n = data.actors.length;
   const statistics = body.statistics as AuxStatisticId[];
   const maxima = resolveMaxima(n, body.maxima ?? {});
   if (maxima.degree > n - 1 && body.maxima?.degree !== undefined) {
-    throw new BatchInputError(`The largest degree shown can be at most ${n - 1} (the study has ${n} actors).`);
+    throw badRequest(`The largest degree shown can be at most ${n - 1} (the study has ${n} actors).`);
   }
   if (maxima.distance > Math.max(1, n - 1) && body.maxima?.distance !== undefined) {
-    throw new BatchInputError(`The largest distance shown can be at most ${Math.max(1, n - 1)} (the study has ${n} actors).`);
+    throw badRequest(`The largest distance shown can be at most ${Math.max(1, n - 1)} (the study has ${n} actors).`);
   }
   const layout = buildLayout(statistics, maxima);
   const observed = observedVectors(data, periods, statistics, maxima);
@@ -388,7 +373,7 @@ export function checkPeriod(batch: LoadedBatch, raw: unknown): number {
   if (raw === undefined || raw === '') return periods[0];
   const p = Number(raw);
   if (!Number.isInteger(p) || !periods.includes(p)) {
-    throw new BatchInputError(`This batch simulated period${periods.length > 1 ? 's' : ''} ${periods.join(', ')}; there is no period "${String(raw)}" in it.`);
+    throw badRequest(`This batch simulated period${periods.length > 1 ? 's' : ''} ${periods.join(', ')}; there is no period "${String(raw)}" in it.`);
   }
   return p;
 }
@@ -398,7 +383,7 @@ export function checkStatistic(batch: LoadedBatch, raw: unknown): { layout: Stat
   const id = raw === undefined || raw === '' ? ids[0] : String(raw);
   const index = ids.indexOf(id as AuxStatisticId);
   if (index < 0) {
-    throw new BatchInputError(`This batch has no statistic "${id}"; it has ${ids.join(', ')}.`);
+    throw badRequest(`This batch has no statistic "${id}"; it has ${ids.join(', ')}.`);
   }
   const { offsets } = layoutOffsets(batch.layout);
   return { layout: batch.layout[index], offset: offsets.get(ids[index])! };
@@ -408,7 +393,7 @@ export function parseCoverages(raw: unknown): number[] {
   if (raw === undefined || raw === '') return [0.5, 0.9];
   const parts = String(raw).split(',').map((s) => Number(s.trim()));
   if (parts.length === 0 || parts.length > 5 || parts.some((g) => !(g > 0 && g < 1))) {
-    throw new BatchInputError('Coverages are up to five numbers between 0 and 1, separated by commas (e.g. 0.5,0.9).');
+    throw badRequest('Coverages are up to five numbers between 0 and 1, separated by commas (e.g. 0.5,0.9).');
   }
   return parts;
 }
@@ -422,7 +407,7 @@ export function gofOf(
 ): GofResponse {
   const { layout, offset } = statistic;
   const components = layout.components;
-  if (matrix.chains < 2) throw new BatchInputError('This batch has fewer than two chains stored; there is nothing to compare.', 409);
+  if (matrix.chains < 2) throw conflict('batch_not_ready', 'This batch has fewer than two chains stored; there is nothing to compare.');
   const sample = statisticSample(matrix, offset, components.length);
   const observed = batch.observed[String(period)]?.[layout.statistic];
   if (!observed) throw new Error(`batch: no observed ${layout.statistic} for period ${period}`);
@@ -505,16 +490,16 @@ export async function consensusOf(
   let threshold = 0.5;
   if (!top && query.threshold !== undefined && query.threshold !== '') {
     threshold = Number(query.threshold);
-    if (!(threshold > 0 && threshold <= 1)) throw new BatchInputError('The threshold is a share of chains: a number above 0 and at most 1 (e.g. 0.5).');
+    if (!(threshold > 0 && threshold <= 1)) throw badRequest('The threshold is a share of chains: a number above 0 and at most 1 (e.g. 0.5).');
   }
   const row = syncDb(dataSource)
     .prepare(`SELECT "actors", "networks", "tieTotal", "counts" FROM "batch_tie_counts" WHERE "batchId" = ? AND "period" = ?`)
     .get(batch.row.id, period) as { actors: number; networks: number; tieTotal: number; counts: Buffer } | undefined;
-  if (!row || row.networks === 0) throw new BatchInputError('No simulated networks are stored for this period.', 409);
+  if (!row || row.networks === 0) throw conflict('batch_not_ready', 'No simulated networks are stored for this period.');
   const n = row.actors;
   const freq = new TieFrequencies(n, int32FromBlob(row.counts), row.networks, row.tieTotal);
   const data = await loadStudyData(dataSource, batch.row.studyId);
-  if (data.actors.length !== n) throw new BatchInputError('The study data changed after this batch was run.', 409);
+  if (data.actors.length !== n) throw conflict('batch_not_ready', 'The study data changed after this batch was run.');
   const net = periodNetworks(data)[period - 1];
   const consensus = top
     ? consensusTopL(freq, deriveSeed(batch.summary.seed, 0x70, period), net.compareMask)

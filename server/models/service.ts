@@ -1,7 +1,7 @@
 /**
  * Models and fits: storing and checking model specifications, starting fits (a job on the queue, or a
  * hand-entered "fixed" fit stored at once), reading them with live progress, and cancelling.
- * Refusals throw ModelInputError (turned into API errors by ./routes.ts) and store nothing.
+ * Refusals throw ApiError (../errors.ts; the error handler answers with it) and store nothing.
  */
 import { randomInt } from 'node:crypto';
 import type { DataSource } from 'typeorm';
@@ -20,23 +20,13 @@ import {
   type ParsedStartFitBody,
 } from '../../shared/models';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
+import { badRequest, conflict, notFound } from '../errors';
 import { createJobRow, inSyncTransaction, jobQueueFor, parseSqlDate, sqlNow, syncDb, type JobStatus } from '../jobs';
 import type { FitJobPayload, StoredFitPlan } from './context';
 import { FIT_JOB_KIND, plainReason } from './jobKind';
 import { checkSpecAgainstData, effectKey, rateKey, sortedRates, type StoredSpec } from './modelData';
 import { decodeProgress, fitWorkPlan } from './progress';
 import { resultsFromValues } from './results';
-
-export class ModelInputError extends Error {
-  constructor(
-    message: string,
-    readonly status = 400,
-    readonly code: 'bad_request' | 'not_found' | 'validation_failed' | 'conflict' = 'bad_request',
-    readonly details?: unknown,
-  ) {
-    super(message);
-  }
-}
 
 interface ModelRow {
   id: number;
@@ -76,7 +66,7 @@ async function studyData(dataSource: DataSource, studyId: number): Promise<Loade
   try {
     return await loadStudyData(dataSource, studyId);
   } catch {
-    throw new ModelInputError('This study has no data yet: upload at least two waves before making a model.', 400, 'bad_request');
+    throw badRequest('This study has no data yet: upload at least two waves before making a model.');
   }
 }
 
@@ -86,12 +76,7 @@ function refuseOnErrors(notes: ModelNote[]): void {
   if (errors.length === 0) return;
   const fields: Record<string, string[]> = {};
   for (const e of errors) (fields[e.path] ??= []).push(e.message);
-  throw new ModelInputError(
-    `The model does not suit this study's data: ${errors.map((e) => e.message).join(' ')}`,
-    400,
-    'validation_failed',
-    { fields, notes },
-  );
+  throw badRequest(`The model does not suit this study's data: ${errors.map((e) => e.message).join(' ')}`, { fields, notes }, 'validation_failed');
 }
 
 function specOf(body: { rates: StoredSpec['rates']; effects: StoredSpec['effects'] }): StoredSpec {
@@ -228,12 +213,7 @@ export async function updateModel(dataSource: DataSource, row: ModelRow, update:
   if (!parsed.success) {
     const fields: Record<string, string[]> = {};
     for (const issue of parsed.error.issues) (fields[issue.path.map(String).join('.')] ??= []).push(issue.message);
-    throw new ModelInputError(
-      `The changed model is not valid: ${Object.values(fields).flat().join(' ')}`,
-      400,
-      'validation_failed',
-      { fields },
-    );
+    throw badRequest(`The changed model is not valid: ${Object.values(fields).flat().join(' ')}`, { fields }, 'validation_failed');
   }
   const spec = specOf(parsed.data);
   if (update.rates || update.effects) {
@@ -360,9 +340,9 @@ export async function startFit(
     const known = new Set(keys);
     const unknown = Object.keys(body.values ?? {}).filter((k) => !known.has(k));
     if (unknown.length) {
-      throw new ModelInputError(`This model has no parameter ${unknown.map((k) => `"${k}"`).join(', ')} (it has ${keys.join(', ')}).`, 400, 'validation_failed', {
+      throw badRequest(`This model has no parameter ${unknown.map((k) => `"${k}"`).join(', ')} (it has ${keys.join(', ')}).`, {
         fields: { values: [`Unknown parameter ${unknown.join(', ')}.`] },
-      });
+      }, 'validation_failed');
     }
     const values: Record<string, number> = {};
     const missing: string[] = [];
@@ -382,7 +362,7 @@ export async function startFit(
     });
     if (missing.length) fields.values = [`Enter a value for ${missing.join(', ')}.`];
     if (Object.keys(fields).length) {
-      throw new ModelInputError(`A fit with hand-entered values needs a value for every parameter: ${Object.values(fields).flat().join(' ')}`, 400, 'validation_failed', { fields });
+      throw badRequest(`A fit with hand-entered values needs a value for every parameter: ${Object.values(fields).flat().join(' ')}`, { fields }, 'validation_failed');
     }
     // The data must still suit the model (covariates present and of the right kind).
     refuseOnErrors(checkSpecAgainstData(data, spec).filter((n) => n.code !== 'zero_change' && n.code !== 'at_bound'));
@@ -401,28 +381,23 @@ export async function startFit(
 
   // Estimation.
   if (body.values !== undefined) {
-    throw new ModelInputError('Values are for hand-entered fits (mode "fixed"); an estimation starts from the model\'s starting values or from startFrom.', 400, 'validation_failed', {
+    throw badRequest('Values are for hand-entered fits (mode "fixed"); an estimation starts from the model\'s starting values or from startFrom.', {
       fields: { values: ['Only with mode "fixed".'] },
-    });
+    }, 'validation_failed');
   }
   const p = spec.rates.filter((r) => r.estimate).length + spec.effects.filter((e) => e.estimate).length;
   if (p === 0) {
-    throw new ModelInputError(
-      'Every parameter of this model is fixed, so there is nothing to estimate. Mark at least one as estimated, or store the values as a hand-entered fit (mode "fixed").',
-      400,
-      'validation_failed',
-      { fields: { mode: ['Nothing to estimate.'] } },
-    );
+    throw badRequest('Every parameter of this model is fixed, so there is nothing to estimate. Mark at least one as estimated, or store the values as a hand-entered fit (mode "fixed").', { fields: { mode: ['Nothing to estimate.'] } }, 'validation_failed');
   }
   refuseOnErrors(checkSpecAgainstData(data, spec));
   const plan: StoredFitPlan = { startValues: {}, initialDerivative: null };
   if (body.startFrom !== undefined) {
     const earlier = getFitRow(dataSource, model.studyId, model.id, body.startFrom);
-    if (!earlier) throw new ModelInputError('The fit to start from was not found among this model\'s fits.', 404, 'not_found');
+    if (!earlier) throw notFound('The fit to start from was not found among this model\'s fits.');
     if (!earlier.results) {
-      throw new ModelInputError('The fit to start from has no results (it is not done); wait for it or choose another.', 400, 'validation_failed', {
+      throw badRequest('The fit to start from has no results (it is not done); wait for it or choose another.', {
         fields: { startFrom: ['That fit has no results.'] },
-      });
+      }, 'validation_failed');
     }
     const results = JSON.parse(earlier.results) as FitResults;
     for (const q of results.parameters) plan.startValues[q.key] = q.value;
@@ -470,12 +445,12 @@ function readDerivative(row: FitRowDb): number[][] | null {
 
 export async function cancelFit(dataSource: DataSource, row: FitRowDb): Promise<void> {
   if (row.mode !== 'estimate' || row.jobId === null) {
-    throw new ModelInputError('A fit with hand-entered values has nothing to cancel.', 409, 'conflict');
+    throw conflict('fit_not_running', 'A fit with hand-entered values has nothing to cancel.');
   }
   const status = jobQueueFor(dataSource).status(row.jobId);
   const state = fitState(row, status ?? undefined);
   if (state === 'done' || state === 'failed' || state === 'cancelled') {
-    throw new ModelInputError(`This fit has already ${state === 'done' ? 'finished' : state === 'failed' ? 'failed' : 'been cancelled'}; there is nothing to cancel.`, 409, 'conflict');
+    throw conflict('fit_not_running', `This fit has already ${state === 'done' ? 'finished' : state === 'failed' ? 'failed' : 'been cancelled'}; there is nothing to cancel.`);
   }
   await jobQueueFor(dataSource).cancel(row.jobId, 'cancelled by a user');
 }

@@ -5,7 +5,6 @@
  * each (server/db/sync.ts explains why), so a verdict and its history row commit together or not at all.
  */
 import type { DataSource } from 'typeorm';
-import type { ApiErrorCode } from '../../shared/api';
 import type { AuxStatisticId } from '../../shared/auxStatistics';
 import {
   countVerdicts,
@@ -24,20 +23,9 @@ import {
 } from '../../shared/review';
 import { getBatch, type LoadedBatch } from '../batches/service';
 import { inSyncTransaction, parseSqlDate, sqlNow, syncDb, type SyncDb } from '../db/sync';
+import { ApiError } from '../errors';
 import type { VerdictHistoryRow } from './entities';
 import { recordEvent, wakeAfterCommit, type ReportSignedPayload, type ReviewRequestedPayload } from '../notify/notifier';
-
-/** A refusal with a status, code and plain message; the routes turn it into the API's error shape. */
-export class ReviewError extends Error {
-  constructor(
-    readonly status: number,
-    readonly code: ApiErrorCode,
-    message: string,
-    readonly details?: unknown,
-  ) {
-    super(message);
-  }
-}
 
 const iso = (value: string | null | undefined): string | null => parseSqlDate(value ?? null)?.toISOString() ?? null;
 const person = (id: number | null, name: string | null | undefined): PersonRef | null =>
@@ -47,13 +35,13 @@ const person = (id: number | null, name: string | null | undefined): PersonRef |
 
 export function loadReviewBatch(dataSource: DataSource, studyId: number, batchId: number): LoadedBatch {
   const batch = getBatch(dataSource, studyId, batchId);
-  if (!batch) throw new ReviewError(404, 'not_found', 'Batch not found.');
+  if (!batch) throw new ApiError(404, 'not_found', 'Batch not found.');
   return batch;
 }
 
 export function requireDone(batch: LoadedBatch): void {
   if (batch.summary.state !== 'done') {
-    throw new ReviewError(
+    throw new ApiError(
       409,
       'batch_not_ready',
       `This batch is ${batch.summary.state === 'running' ? 'still running' : batch.summary.state}; statistics are reviewed once it is done.`,
@@ -79,7 +67,7 @@ export function cardsOf(batch: LoadedBatch): CardRef[] {
 export function checkCard(batch: LoadedBatch, statistic: string, period: number): CardRef {
   const card = cardsOf(batch).find((c) => c.statistic === statistic && c.period === period);
   if (!card) {
-    throw new ReviewError(
+    throw new ApiError(
       404,
       'not_found',
       `This batch has no statistic "${statistic}" in period ${period}; it has ${batch.layout.map((l) => l.statistic).join(', ')} in period${
@@ -157,7 +145,7 @@ export async function saveVerdict(
     const currentVersion = current?.version ?? 0;
     if (body.version !== currentVersion) {
       const who = current?.updatedByName ? ` by ${current.updatedByName}` : '';
-      throw new ReviewError(
+      throw new ApiError(
         409,
         'verdict_conflict',
         current
@@ -338,7 +326,7 @@ export async function createRequests(
     body.userIds.forEach((id, k) => {
       if (!memberIds.has(id)) fields[`userIds.${k}`] = [`User ${id} is not a member of this study; invite them on the team page first.`];
     });
-    throw new ReviewError(400, 'validation_failed', `Only members of the study can be asked to review; not member${strangers.length > 1 ? 's' : ''}: ${strangers.join(', ')}.`, {
+    throw new ApiError(400, 'validation_failed', `Only members of the study can be asked to review; not member${strangers.length > 1 ? 's' : ''}: ${strangers.join(', ')}.`, {
       fields,
     });
   }
