@@ -316,6 +316,38 @@ function parseMatrix(file: SourceFile, missingMarker: string, problems: ProblemL
   return problems.count > start ? null : { labels, cells, headerLine: header.line };
 }
 
+/** Without an actors file: the labels met in the edge lists, in order of first appearance. */
+function actorsInOrderOfAppearance(lists: Array<EdgeEntry[] | null>): string[] {
+  const order = new Set<string>();
+  for (const list of lists) for (const e of list ?? []) order.add(e.sender).add(e.receiver);
+  return [...order];
+}
+
+/** One wave's adjacency from its edge list over the actor index; null (with problems) for unknown actors. */
+function edgeListAdjacency(list: EdgeEntry[], index: Map<string, number>, name: string, problems: ProblemList): Uint8Array | null {
+  const n = index.size;
+  const adjacency = new Uint8Array(n * n);
+  let ok = true;
+  for (const e of list) {
+    const s = index.get(e.sender);
+    const r = index.get(e.receiver);
+    if (s === undefined || r === undefined) {
+      const label = s === undefined ? e.sender : e.receiver;
+      problems.add(name, `Unknown actor "${label}": not in the actors file.`, e.line, s === undefined ? 1 : 2);
+      ok = false;
+      continue;
+    }
+    adjacency[s * n + r] = e.value;
+  }
+  return ok ? adjacency : null;
+}
+
+/** The size limits of a whole network (at least 2 actors, at most MAX_ACTORS). */
+function checkActorCount(actors: string[], problems: ProblemList): void {
+  if (actors.length < 2) problems.add('', `A network needs at least 2 actors; found ${actors.length}.`);
+  if (actors.length > MAX_ACTORS) problems.add('', `At most ${MAX_ACTORS} actors are supported; found ${actors.length}.`);
+}
+
 // ---------- the whole upload ----------
 
 export function parseUpload(body: ParsedDataUploadBody): ParseResult {
@@ -343,30 +375,13 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
 
   if (body.format === 'edgelist') {
     const lists = waveSources.map((src) => (src ? parseEdgeList(src, marker, problems) : null));
-    if (!actors && !body.actors) {
-      const order = new Set<string>();
-      for (const list of lists) for (const e of list ?? []) order.add(e.sender).add(e.receiver);
-      actors = [...order];
-    }
+    if (!actors && !body.actors) actors = actorsInOrderOfAppearance(lists);
     if (actors) {
       const index = new Map(actors.map((a, i) => [a, i]));
-      const n = actors.length;
       lists.forEach((list, k) => {
         if (!list) return;
-        const adjacency = new Uint8Array(n * n);
-        let ok = true;
-        for (const e of list) {
-          const s = index.get(e.sender);
-          const r = index.get(e.receiver);
-          if (s === undefined || r === undefined) {
-            const label = s === undefined ? e.sender : e.receiver;
-            problems.add(names[k], `Unknown actor "${label}": not in the actors file.`, e.line, s === undefined ? 1 : 2);
-            ok = false;
-            continue;
-          }
-          adjacency[s * n + r] = e.value;
-        }
-        if (ok) waves.push({ label: body.waves[k].label, adjacency });
+        const adjacency = edgeListAdjacency(list, index, names[k], problems);
+        if (adjacency) waves.push({ label: body.waves[k].label, adjacency });
       });
     }
   } else {
@@ -407,15 +422,49 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
     }
   }
 
-  if (actors && problems.count === 0) {
-    if (actors.length < 2) problems.add('', `A network needs at least 2 actors; found ${actors.length}.`);
-    if (actors.length > MAX_ACTORS) problems.add('', `At most ${MAX_ACTORS} actors are supported; found ${actors.length}.`);
-  }
+  if (actors && problems.count === 0) checkActorCount(actors, problems);
   if (problems.count > 0 || !actors || waves.length !== waveCount) {
     if (problems.count === 0) problems.add('', 'The upload could not be read.');
     return { ok: false, details: problems.details() };
   }
   return { ok: true, data: { format: body.format, actors, waves, covariates: actorsFile?.covariates ?? [] } };
+}
+
+// ---------- one network file ----------
+
+export interface ParsedNetworkFile {
+  actors: string[];
+  /** Row-major n*n codes: TIE_ABSENT, TIE_PRESENT, TIE_MISSING. */
+  adjacency: Uint8Array;
+}
+
+export type NetworkFileResult = { ok: true; network: ParsedNetworkFile } | { ok: false; details: DataProblemDetails };
+
+/**
+ * One network file on its own (the command line's `stats FILE`), read by exactly the rules of a wave
+ * of an upload (shared/data.ts): the same CSV reader, the same edge-list and matrix checks, the same
+ * messages. Without an actors file the actors are the labels of the file (edge list: in order of
+ * first appearance; matrix: the first row).
+ */
+export function parseNetworkFile(name: string, content: string, format: DataFormat, missingMarker = 'NA'): NetworkFileResult {
+  const problems = new ProblemList();
+  const source = readFile(name, content, problems);
+  let network: ParsedNetworkFile | null = null;
+  if (source && format === 'edgelist') {
+    const list = parseEdgeList(source, missingMarker, problems);
+    const actors = actorsInOrderOfAppearance([list]);
+    const adjacency = edgeListAdjacency(list, new Map(actors.map((a, i) => [a, i])), name, problems);
+    if (adjacency) network = { actors, adjacency };
+  } else if (source) {
+    const matrix = parseMatrix(source, missingMarker, problems);
+    if (matrix) network = { actors: matrix.labels, adjacency: matrix.cells };
+  }
+  if (network && problems.count === 0) checkActorCount(network.actors, problems);
+  if (problems.count > 0 || !network) {
+    if (problems.count === 0) problems.add(name, 'The file could not be read.');
+    return { ok: false, details: problems.details() };
+  }
+  return { ok: true, network };
 }
 
 // ---------- writing ----------
