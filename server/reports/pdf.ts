@@ -7,6 +7,7 @@
 import { readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import PDFDocument from 'pdfkit';
+import { palette } from '../../shared/palette';
 import {
   chartScaleOf,
   formatPValue,
@@ -38,18 +39,19 @@ function fontFile(name: string): Buffer {
   return data;
 }
 
+/** The report's colours: the shared palette (shared/palette.ts) that the screens use too. */
 const C = {
-  ink: '#1D2433',
-  muted: '#5B6475',
-  rule: '#D9D4C7',
-  sunk: '#EFECE4',
-  accent: '#0E6E6E',
-  wide: '#8FA3BF',
-  narrow: '#4F6A8F',
-  pass: '#2F7D4F',
-  fail: '#A23B3B',
-  unsure: '#9A6B12',
-  awaiting: '#5B6475',
+  ink: palette.ink,
+  muted: palette.muted,
+  rule: palette.rule,
+  sunk: palette.surfaceSunk,
+  accent: palette.accent,
+  wide: palette.envelopeWide,
+  narrow: palette.envelopeNarrow,
+  pass: palette.pass,
+  fail: palette.fail,
+  unsure: palette.unsure,
+  awaiting: palette.muted,
 };
 
 const VERDICT_COLOUR: Record<Verdict, string> = { pass: C.pass, fail: C.fail, unsure: C.unsure };
