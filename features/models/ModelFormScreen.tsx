@@ -7,7 +7,7 @@ import { EFFECT_CATALOGUE, type EffectId, type EffectInfo } from '../../shared/e
 import { modelSpecBodySchema, type ModelDetail, type ModelNote, type ModelSpecBody } from '../../shared/models';
 import { messageOf } from '../api/client';
 import { fieldErrorsFromApi, validateWith, type FieldErrors } from '../forms/validation';
-import { parseStudyId, useStudy } from '../studies/queries';
+import { parseStudyId, useStudy, useStudyData } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
 import { Banner } from '../ui/Banner';
 import { Button, ButtonRow } from '../ui/Button';
@@ -23,7 +23,8 @@ import { colors } from '../ui/theme';
 import { space } from '../ui/tokens';
 import { useBreakpoint } from '../ui/useBreakpoint';
 import { Checkbox } from '../ui/Checkbox';
-import { parseId, useModel, useModelMutations, useStudyData } from './queries';
+import { parseId } from '../api/params';
+import { useModel, useModelMutations } from './queries';
 
 type Mode = 'estimate' | 'fix';
 
