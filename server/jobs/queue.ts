@@ -2,6 +2,10 @@
  * The embedded job queue: jobs in SQLite, chunks computed by a pool of worker threads, each finished
  * chunk stored in one transaction. A crash loses at most the chunks in flight; `start()` resumes every
  * unfinished job. See README.md for the design and for adding a job kind.
+ *
+ * This file schedules: it claims open jobs, hands chunks to the worker threads, stores their results
+ * and emits progress events. The rows' SQL is in ./rows.ts, the API's status shape in ./status.ts,
+ * and the one queue per data source in ./queues.ts.
  */
 import { EventEmitter } from 'node:events';
 import { availableParallelism } from 'node:os';
@@ -10,9 +14,11 @@ import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { DataSource } from 'typeorm';
 import type { JobState } from './entities';
-import { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from '../db/sync';
+import { inSyncTransaction, sqlNow, syncDb } from '../db/sync';
 import type { FromWorker, ToWorker } from './protocol';
 import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
+import { appendLog, claimJobRow, completeJobRow, createJobRow, endJobRow, TERMINAL } from './rows';
+import { statusFromRow, type JobStatus } from './status';
 
 export interface JobQueueOptions {
   /** Worker threads (default: WAVEFIT_WORKERS, else the number of cores). */
@@ -25,28 +31,7 @@ export interface JobQueueOptions {
   log?: (line: string) => void;
 }
 
-/** A job row as the API shows it, with live progress while it runs. */
-export interface JobStatus {
-  id: number;
-  kind: string;
-  state: JobState;
-  /** Units done: stored chunks plus the live progress of chunks in flight. */
-  progressDone: number;
-  progressTotal: number;
-  chunksDone: number;
-  chunksTotal: number;
-  attempts: number;
-  error: string | null;
-  log: string;
-  createdAt: Date;
-  startedAt: Date | null;
-  finishedAt: Date | null;
-  /** Seconds left, from this run's pace; null until a chunk has finished or when not running. */
-  secondsLeft: number | null;
-}
 
-const TERMINAL: ReadonlySet<JobState> = new Set(['done', 'failed', 'cancelled']);
-const LOG_LIMIT = 65_536;
 
 export function defaultWorkerCount(env: Record<string, string | undefined> = process.env): number {
   const raw = env.WAVEFIT_WORKERS;
@@ -93,31 +78,7 @@ interface ActiveJob {
   total: number;
 }
 
-function appendLog(db: SyncDb, jobId: number, line: string): void {
-  const stamped = `${new Date().toISOString()} ${line}\n`;
-  db.prepare(`UPDATE "jobs" SET "log" = substr("log" || ?, -${LOG_LIMIT}), "updatedAt" = ? WHERE "id" = ?`).run(stamped, sqlNow(), jobId);
-}
 
-/**
- * Insert a queued job row (synchronously, so a caller can do it inside its own transaction together
- * with its own rows). Plans the chunks first: a payload the kind refuses throws and stores nothing.
- * Call `queue.wake()` after the caller's transaction commits.
- */
-export function createJobRow(db: SyncDb, kind: string, payload: unknown): number {
-  const handler = getJobKind(kind);
-  if (!handler) throw new Error(`jobs: unknown job kind "${kind}"`);
-  const plan = handler.planChunks(payload);
-  if (plan.length === 0) throw new Error(`jobs: a ${kind} job must have at least one chunk`);
-  const units = plan.reduce((sum, p) => sum + p.units, 0);
-  const now = sqlNow();
-  const result = db
-    .prepare(
-      `INSERT INTO "jobs" ("kind", "payload", "state", "progressDone", "progressTotal", "chunksDone", "chunksTotal", "log", "attempts", "createdAt", "updatedAt")
-       VALUES (?, ?, 'queued', 0, ?, 0, ?, ?, 0, ?, ?)`,
-    )
-    .run(kind, JSON.stringify(payload), units, plan.length, `${new Date().toISOString()} queued: ${plan.length} chunks, ${units} units\n`, now, now);
-  return Number(result.lastInsertRowid);
-}
 
 export class JobQueue extends EventEmitter {
   readonly dataSource: DataSource;
@@ -199,7 +160,7 @@ export class JobQueue extends EventEmitter {
    */
   async cancel(jobId: number, reason = 'cancelled by a user'): Promise<{ cancelled: boolean; ms: number }> {
     const t0 = performance.now();
-    const cancelled = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, jobId, 'cancelled', reason));
+    const cancelled = await inSyncTransaction(this.db, (db) => endJobRow(db, jobId, 'cancelled', reason));
     if (cancelled) await this.abandon(jobId, 'cancelled');
     return { cancelled, ms: performance.now() - t0 };
   }
@@ -236,22 +197,7 @@ export class JobQueue extends EventEmitter {
       const pace = job.sessionUnits + live;
       if (pace > 0 && elapsed > 0) secondsLeft = ((Number(row.progressTotal) - progressDone) * elapsed) / pace;
     }
-    return {
-      id,
-      kind: String(row.kind),
-      state,
-      progressDone,
-      progressTotal: Number(row.progressTotal),
-      chunksDone: Number(row.chunksDone),
-      chunksTotal: Number(row.chunksTotal),
-      attempts: Number(row.attempts),
-      error: (row.error as string | null) ?? null,
-      log: String(row.log ?? ''),
-      createdAt: parseSqlDate(row.createdAt as string)!,
-      startedAt: parseSqlDate(row.startedAt as string | null),
-      finishedAt: parseSqlDate(row.finishedAt as string | null),
-      secondsLeft,
-    };
+    return statusFromRow(row, { progressDone, secondsLeft });
   }
 
   /** Resolves with the final state once the job is done, failed or cancelled. */
@@ -329,7 +275,7 @@ export class JobQueue extends EventEmitter {
         context = await kind.loadContext(info, this.dataSource);
       } catch (error) {
         const message = error instanceof Error ? error.message : String(error);
-        await inSyncTransaction(this.db, (db) => this.endJobInDb(db, row.id, 'failed', `could not start: ${message}`));
+        await inSyncTransaction(this.db, (db) => endJobRow(db, row.id, 'failed', `could not start: ${message}`));
         this.settle(row.id, 'failed');
         continue;
       }
@@ -337,14 +283,9 @@ export class JobQueue extends EventEmitter {
         (this.db.prepare(`SELECT "chunkIndex" FROM "job_chunks" WHERE "jobId" = ?`).all(row.id) as { chunkIndex: number }[]).map((r) => r.chunkIndex),
       );
       const resumed = row.state === 'running';
-      const stillOpen = await inSyncTransaction(this.db, (db) => {
-        const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(row.id) as { state: JobState } | undefined;
-        if (!current || TERMINAL.has(current.state)) return false;
-        const now = sqlNow();
-        db.prepare(`UPDATE "jobs" SET "state" = 'running', "attempts" = "attempts" + 1, "startedAt" = coalesce("startedAt", ?), "updatedAt" = ? WHERE "id" = ?`).run(now, now, row.id);
-        appendLog(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`);
-        return true;
-      });
+      const stillOpen = await inSyncTransaction(this.db, (db) =>
+        claimJobRow(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`),
+      );
       if (!stillOpen) continue;
       const unitsDone = plan.reduce((sum, p, i) => sum + (done.has(i) ? p.units : 0), 0);
       const job: ActiveJob = {
@@ -492,7 +433,7 @@ export class JobQueue extends EventEmitter {
         // Counted inside the transaction, so two chunks stored back to back cannot both miss the end.
         job.done.add(chunkIndex);
         try {
-          if (job.done.size === job.plan.length) this.completeInDb(db, job);
+          if (job.done.size === job.plan.length) completeJobRow(db, job);
         } catch (error) {
           job.done.delete(chunkIndex);
           throw error;
@@ -515,46 +456,21 @@ export class JobQueue extends EventEmitter {
     void this.pump();
   }
 
-  private completeInDb(db: SyncDb, job: ActiveJob): void {
-    job.kind.finish?.(db, job.info);
-    const now = sqlNow();
-    db.prepare(`UPDATE "jobs" SET "state" = 'done', "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(now, now, job.id);
-    appendLog(db, job.id, 'done');
-  }
 
   private async finishIfComplete(job: ActiveJob): Promise<void> {
     const finished = await inSyncTransaction(this.db, (db) => {
       const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(job.id) as { state: JobState } | undefined;
       if (!current || current.state !== 'running') return false;
-      this.completeInDb(db, job);
+      completeJobRow(db, job);
       return true;
     });
     if (finished) this.afterEnd(job, 'done');
   }
 
-  /** Marks a queued/running job as failed or cancelled; returns false if it had already ended. */
-  private endJobInDb(db: SyncDb, jobId: number, state: 'failed' | 'cancelled', reason: string): boolean {
-    const row = db.prepare(`SELECT "state", "kind", "payload", "attempts" FROM "jobs" WHERE "id" = ?`).get(jobId) as
-      | { state: JobState; kind: string; payload: string; attempts: number }
-      | undefined;
-    if (!row || TERMINAL.has(row.state)) return false;
-    const now = sqlNow();
-    db.prepare(`UPDATE "jobs" SET "state" = ?, "error" = ?, "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(
-      state,
-      state === 'failed' ? reason : null,
-      now,
-      now,
-      jobId,
-    );
-    appendLog(db, jobId, `${state}: ${reason}`);
-    const kind = getJobKind(row.kind);
-    kind?.onEnd?.(db, { id: jobId, kind: row.kind, payload: JSON.parse(row.payload), attempts: row.attempts }, state, reason);
-    return true;
-  }
 
   private async failJob(job: ActiveJob, reason: string): Promise<void> {
     if (job.ended) return;
-    const failed = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, job.id, 'failed', reason));
+    const failed = await inSyncTransaction(this.db, (db) => endJobRow(db, job.id, 'failed', reason));
     this.report(`jobs: job ${job.id} failed: ${reason}`);
     if (failed) await this.abandon(job.id, 'failed');
     else void this.pump();
@@ -640,42 +556,4 @@ export class JobQueue extends EventEmitter {
     }, this.idleShutdownMs);
     this.idleTimer.unref();
   }
-}
-
-// ---------------------------------------------------------------- one queue per data source
-
-const queues = new WeakMap<DataSource, JobQueue>();
-
-/**
- * The queue of a data source (created on first use, not started). Routes call this to enqueue; the
- * server's main.ts calls `startJobQueue` at boot so unfinished jobs resume.
- */
-export function jobQueueFor(dataSource: DataSource, options?: JobQueueOptions): JobQueue {
-  let queue = queues.get(dataSource);
-  if (!queue) {
-    queue = new JobQueue(dataSource, options);
-    queues.set(dataSource, queue);
-  }
-  return queue;
-}
-
-/** Creates (if needed) and starts the queue of a data source; resumes unfinished jobs. */
-export async function startJobQueue(dataSource: DataSource, options?: JobQueueOptions): Promise<JobQueue> {
-  const queue = jobQueueFor(dataSource, options);
-  await queue.start();
-  return queue;
-}
-
-/** Stops the queue of a data source (workers terminated; unfinished jobs resume at the next start). */
-export async function stopJobQueue(dataSource: DataSource): Promise<void> {
-  const queue = queues.get(dataSource);
-  if (queue) {
-    await queue.stop();
-    queues.delete(dataSource);
-  }
-}
-
-/** Synchronous form of createJobRow in its own transaction (for scripts). */
-export function enqueueNow(dataSource: DataSource, kind: string, payload: unknown): number {
-  return inSyncTransactionNow(syncDb(dataSource), (db) => createJobRow(db, kind, payload));
 }
