@@ -9,22 +9,9 @@ import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
-import {
-  batchDetail,
-  cancelBatch,
-  checkPeriod,
-  checkStatistic,
-  consensusOf,
-  createBatch,
-  getBatch,
-  gofOf,
-  gofSummaryOf,
-  listBatches,
-  parseCoverages,
-  periodMatrix,
-  statisticsCsv,
-  type LoadedBatch,
-} from './service';
+import { consensusOf } from './consensus';
+import { checkPeriod, checkStatistic, gofOf, gofSummaryOf, parseCoverages, periodMatrix, statisticsCsv } from './gof';
+import { batchDetail, cancelBatch, createBatch, getBatch, listBatches, type LoadedBatch } from './service';
 
 /** Stored rows of finished batches, kept in memory for the views (results never change once done). */
 class MatrixCache {

@@ -17,7 +17,9 @@ import {
   type ReportStatisticJson,
 } from '../../shared/review';
 import { drawEnvelope, legend } from './pdfChart';
-import { C, countsStrip, dateTime, fontFile, MARGIN, num, table, VERDICT_COLOUR, verdictIcon, Writer } from './pdfLayout';/** A waves' period in words: "period 1 (spring to midsummer)". */
+import { C, countsStrip, dateTime, fontFile, MARGIN, num, table, VERDICT_COLOUR, verdictIcon, Writer } from './pdfLayout';
+
+/** A waves' period in words: "period 1 (spring to midsummer)". */
 function periodWords(report: ReportJson, period: number): string {
   const from = report.study.waves[period - 1];
   const to = report.study.waves[period];
