@@ -14,7 +14,8 @@ import { createBatch, getBatch } from '../batches/service';
 import { jobQueueFor, syncDb } from '../jobs';
 import '../models/jobKind';
 import { createModel, getModelRow, startFit } from '../models/service';
-import { createRequests, saveVerdict } from '../review/service';
+import { createRequests } from '../review/requests';
+import { saveVerdict } from '../review/service';
 
 export const DEMO_CHAINS = 100;
 

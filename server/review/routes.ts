@@ -24,21 +24,10 @@ import type { RouteDeps } from '../deps';
 import { compareItems } from './compare';
 import { GofCache } from './gofData';
 import { LayoutCache } from './layout';
-import {
-  addComment,
-  boardOf,
-  checkCard,
-  commentsOf,
-  completeRequest,
-  createRequests,
-  historyOf,
-  inboxOf,
-  loadReviewBatch,
-  requestById,
-  requestsOf,
-  requireDone,
-  saveVerdict,
-} from './service';
+import { boardOf } from './board';
+import { addComment, commentsOf } from './comments';
+import { completeRequest, createRequests, inboxOf, requestById, requestsOf } from './requests';
+import { checkCard, historyOf, loadReviewBatch, requireDone, saveVerdict } from './service';
 
 function cardQuery(req: Request): { statistic: string; period: number } {
   const statistic = typeof req.query.statistic === 'string' ? req.query.statistic : '';
