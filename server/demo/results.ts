@@ -13,7 +13,9 @@ import '../batches/jobKind';
 import { createBatch, getBatch } from '../batches/service';
 import { jobQueueFor, syncDb } from '../jobs';
 import '../models/jobKind';
-import { createModel, getModelRow, startFit } from '../models/service';
+import { startFit } from '../models/fits';
+import { getModelRow } from '../models/rows';
+import { createModel } from '../models/service';
 import { createRequests } from '../review/requests';
 import { saveVerdict } from '../review/service';
 

@@ -15,21 +15,9 @@ import { currentStudy, currentUser } from '../auth/context';
 import { idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
-import {
-  cancelFit,
-  checkModel,
-  createModel,
-  deleteModel,
-  fitDetail,
-  getFitRow,
-  getModelRow,
-  listFits,
-  listModels,
-  modelDetail,
-  startFit,
-  updateModel,
-  type ModelUpdate,
-} from './service';
+import { cancelFit, fitDetail, getFitRow, listFits, startFit } from './fits';
+import { getModelRow } from './rows';
+import { checkModel, createModel, deleteModel, listModels, modelDetail, updateModel, type ModelUpdate } from './service';
 
 export function modelsRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
