@@ -1,6 +1,6 @@
 /**
  * The review board's routes (contract in shared/review.ts): the board of a batch, verdicts with their
- * history, comments, review requests, the inbox, notification preferences and the model comparison.
+ * history, comments, review requests, the inbox and the model comparison.
  * Mounted at /api (paths carry their own /studies/:studyId or /me prefix). Building the router also
  * registers the app's notification dispatcher and sends anything left pending.
  */
@@ -8,18 +8,15 @@ import { Router, type Request } from 'express';
 import { can } from '../../shared/api';
 import {
   commentBodySchema,
-  notificationPreferencesBodySchema,
   parseIdList,
   reviewRequestBodySchema,
   verdictBodySchema,
-  type NotificationPreferences,
   type ParsedVerdictBody,
 } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, forbidden, idParam, notFound, validate } from '../errors';
-import { inSyncTransaction, syncDb } from '../db/sync';
+import { syncDb } from '../db/sync';
 import { createNotifier, registerNotifier, type Notifier } from '../notify/notifier';
-import { preferencesOf, updatePreferences } from '../notify/preferences';
 import type { RouteDeps } from '../deps';
 import { compareItems } from './compare';
 import { GofCache } from './gofData';
@@ -132,17 +129,6 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
 
   router.get('/me/inbox', auth.requireUser, (req, res) => {
     res.json({ items: inboxOf(dataSource, currentUser(req).id) });
-  });
-
-  router.get('/me/notifications', auth.requireUser, (req, res) => {
-    res.json({ preferences: preferencesOf(syncDb(dataSource), currentUser(req).id) });
-  });
-
-  router.patch('/me/notifications', auth.requireUser, validate(notificationPreferencesBodySchema), async (req, res) => {
-    const user = currentUser(req);
-    const change = req.body as Partial<NotificationPreferences>;
-    const preferences = await inSyncTransaction(syncDb(dataSource), (db) => updatePreferences(db, user.id, change));
-    res.json({ preferences });
   });
 
   router.get('/studies/:studyId/compare', ...member('read'), (req, res) => {
