@@ -4,18 +4,16 @@
  * unfinished job. See README.md for the design and for adding a job kind.
  *
  * This file schedules: it claims open jobs, hands chunks to the worker threads, stores their results
- * and emits progress events. The rows' SQL is in ./rows.ts, the API's status shape in ./status.ts,
- * and the one queue per data source in ./queues.ts.
+ * and emits progress events. The worker threads are in ./pool.ts, the rows' SQL in ./rows.ts,
+ * the API's status shape in ./status.ts and the one queue per data source in ./queues.ts.
  */
 import { EventEmitter } from 'node:events';
 import { availableParallelism } from 'node:os';
-import { join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { Worker } from 'node:worker_threads';
 import type { DataSource } from 'typeorm';
 import type { JobState } from './entities';
 import { inSyncTransaction, sqlNow, syncDb } from '../db/sync';
-import type { FromWorker, ToWorker } from './protocol';
+import { WorkerPool, type Slot, type Task } from './pool';
+import type { FromWorker } from './protocol';
 import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
 import { appendLog, claimJobRow, completeJobRow, createJobRow, endJobRow, TERMINAL } from './rows';
 import { statusFromRow, type JobStatus } from './status';
@@ -43,23 +41,7 @@ export function defaultWorkerCount(env: Record<string, string | undefined> = pro
   return Math.max(1, availableParallelism());
 }
 
-interface Task {
-  taskId: number;
-  jobId: number;
-  chunkIndex: number;
-  units: number;
-  liveUnits: number;
-}
 
-interface Slot {
-  index: number;
-  worker: Worker;
-  task: Task | null;
-  contexts: Set<number>;
-  /** Set when we stop the worker on purpose (cancel, stop, idle): its exit is not a crash. */
-  stopping: boolean;
-  exited: Promise<void>;
-}
 
 interface ActiveJob {
   id: number;
@@ -86,7 +68,7 @@ export class JobQueue extends EventEmitter {
   private readonly maxChunkRetries: number;
   private readonly idleShutdownMs: number;
   private readonly report: (line: string) => void;
-  private readonly slots: (Slot | null)[];
+  private readonly pool: WorkerPool;
   private readonly active = new Map<number, ActiveJob>();
   private readonly waiters = new Map<number, ((state: JobState) => void)[]>();
   private started = false;
@@ -107,7 +89,11 @@ export class JobQueue extends EventEmitter {
     this.maxChunkRetries = options.maxChunkRetries ?? 3;
     this.idleShutdownMs = options.idleShutdownMs ?? 60_000;
     this.report = options.log ?? (() => undefined);
-    this.slots = new Array<Slot | null>(this.workerCount).fill(null);
+    this.pool = new WorkerPool(this.workerCount, {
+      message: (slot, message) => this.onMessage(slot, message),
+      exit: (slot, code) => void this.onExit(slot, code),
+      report: (line) => this.report(line),
+    });
   }
 
   private get db(): SyncDb {
@@ -136,7 +122,7 @@ export class JobQueue extends EventEmitter {
     this.stopped = true;
     if (this.idleTimer) clearTimeout(this.idleTimer);
     this.idleTimer = null;
-    await Promise.all(this.slots.map((slot) => (slot ? this.stopSlot(slot) : undefined)));
+    await Promise.all(this.pool.slots.map((slot) => (slot ? this.pool.stopSlot(slot) : undefined)));
     this.active.clear();
   }
 
@@ -191,7 +177,7 @@ export class JobQueue extends EventEmitter {
     let secondsLeft: number | null = null;
     if (job && !job.ended && state === 'running') {
       let live = 0;
-      for (const slot of this.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
+      for (const slot of this.pool.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
       progressDone = Math.min(Number(row.progressTotal), progressDone + live);
       const elapsed = (performance.now() - job.sessionStart) / 1000;
       const pace = job.sessionUnits + live;
@@ -217,7 +203,7 @@ export class JobQueue extends EventEmitter {
    * Returns the chunk it was working on, or null when no worker was busy.
    */
   crashWorkerForTest(): { jobId: number; chunkIndex: number } | null {
-    const slot = this.slots.find((s) => s?.task);
+    const slot = this.pool.slots.find((s) => s?.task);
     if (!slot || !slot.task) return null;
     const { jobId, chunkIndex } = slot.task;
     void slot.worker.terminate();
@@ -226,7 +212,7 @@ export class JobQueue extends EventEmitter {
 
   /** Number of live worker threads (for tests and diagnostics). */
   get liveWorkers(): number {
-    return this.slots.filter((s) => s !== null).length;
+    return this.pool.live;
   }
 
   // ---------------------------------------------------------------- scheduling
@@ -317,53 +303,19 @@ export class JobQueue extends EventEmitter {
     for (const job of jobs) {
       for (let c = 0; c < job.plan.length; c++) {
         if (job.done.has(c) || job.busy.has(c)) continue;
-        const slot = this.idleSlot();
+        const slot = this.pool.idleSlot();
         if (!slot) return;
         this.runOn(slot, job, c);
       }
     }
   }
 
-  private idleSlot(): Slot | null {
-    for (let i = 0; i < this.slots.length; i++) {
-      const slot = this.slots[i];
-      if (slot && !slot.task && !slot.stopping) return slot;
-    }
-    for (let i = 0; i < this.slots.length; i++) {
-      if (this.slots[i] === null) return this.spawn(i);
-    }
-    return null;
-  }
 
-  private spawn(index: number): Slot {
-    const worker = new Worker(join(__dirname, 'boot.mjs'), {
-      execArgv: [],
-      workerData: { entry: pathToFileURL(join(__dirname, 'worker.ts')).href },
-    });
-    let onExit: () => void = () => undefined;
-    const exited = new Promise<void>((resolve) => {
-      onExit = resolve;
-    });
-    const slot: Slot = { index, worker, task: null, contexts: new Set(), stopping: false, exited };
-    this.slots[index] = slot;
-    worker.on('message', (message: FromWorker) => this.onMessage(slot, message));
-    worker.on('error', (error) => {
-      if (!slot.stopping) this.report(`jobs: worker ${index} failed: ${error.message}`);
-    });
-    worker.on('exit', (code) => {
-      onExit();
-      void this.onExit(slot, code);
-    });
-    return slot;
-  }
 
-  private post(slot: Slot, message: ToWorker): void {
-    slot.worker.postMessage(message);
-  }
 
   private runOn(slot: Slot, job: ActiveJob, chunkIndex: number): void {
     if (!slot.contexts.has(job.id)) {
-      this.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
+      this.pool.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
       slot.contexts.add(job.id);
     }
     const task: Task = { taskId: this.nextTaskId++, jobId: job.id, chunkIndex, units: job.plan[chunkIndex].units, liveUnits: 0 };
@@ -374,13 +326,9 @@ export class JobQueue extends EventEmitter {
       clearTimeout(this.idleTimer);
       this.idleTimer = null;
     }
-    this.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
+    this.pool.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
   }
 
-  private releaseSlot(slot: Slot): void {
-    slot.task = null;
-    slot.worker.unref();
-  }
 
   private onMessage(slot: Slot, message: FromWorker): void {
     if (message.type === 'ready') return;
@@ -395,7 +343,7 @@ export class JobQueue extends EventEmitter {
       void inSyncTransaction(this.db, (db) => appendLog(db, task.jobId, `chunk ${task.chunkIndex}: ${message.line}`)).catch(() => undefined);
       return;
     }
-    this.releaseSlot(slot);
+    this.pool.releaseSlot(slot);
     if (!job || job.ended) {
       void this.pump();
       return;
@@ -482,11 +430,11 @@ export class JobQueue extends EventEmitter {
     if (job) this.afterEnd(job, state);
     else this.settle(jobId, state);
     const stops: Promise<void>[] = [];
-    for (const slot of this.slots) {
+    for (const slot of this.pool.slots) {
       if (!slot) continue;
-      if (slot.task?.jobId === jobId) stops.push(this.stopSlot(slot));
+      if (slot.task?.jobId === jobId) stops.push(this.pool.stopSlot(slot));
       else if (slot.contexts.has(jobId)) {
-        this.post(slot, { type: 'forget', jobId });
+        this.pool.post(slot, { type: 'forget', jobId });
         slot.contexts.delete(jobId);
       }
     }
@@ -497,9 +445,9 @@ export class JobQueue extends EventEmitter {
   private afterEnd(job: ActiveJob, state: JobState): void {
     job.ended = true;
     this.active.delete(job.id);
-    for (const slot of this.slots) {
+    for (const slot of this.pool.slots) {
       if (slot && slot.contexts.has(job.id) && !slot.stopping) {
-        this.post(slot, { type: 'forget', jobId: job.id });
+        this.pool.post(slot, { type: 'forget', jobId: job.id });
         slot.contexts.delete(job.id);
       }
     }
@@ -513,15 +461,9 @@ export class JobQueue extends EventEmitter {
     for (const resolve of list ?? []) resolve(state);
   }
 
-  private async stopSlot(slot: Slot): Promise<void> {
-    slot.stopping = true;
-    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
-    await slot.worker.terminate();
-    await slot.exited;
-  }
 
   private async onExit(slot: Slot, code: number): Promise<void> {
-    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
+    this.pool.vacate(slot);
     const task = slot.task;
     slot.task = null;
     if (slot.stopping || this.stopped) return;
@@ -546,13 +488,13 @@ export class JobQueue extends EventEmitter {
 
   private scheduleIdleShutdown(): void {
     if (this.stopped || this.idleTimer) return;
-    const busy = this.slots.some((s) => s?.task) || this.active.size > 0;
-    const live = this.slots.some((s) => s !== null);
+    const busy = this.pool.slots.some((s) => s?.task) || this.active.size > 0;
+    const live = this.pool.slots.some((s) => s !== null);
     if (busy || !live) return;
     this.idleTimer = setTimeout(() => {
       this.idleTimer = null;
-      const stillIdle = !this.slots.some((s) => s?.task) && this.active.size === 0;
-      if (stillIdle) for (const slot of this.slots) if (slot) void this.stopSlot(slot);
+      const stillIdle = !this.pool.slots.some((s) => s?.task) && this.active.size === 0;
+      if (stillIdle) for (const slot of this.pool.slots) if (slot) void this.pool.stopSlot(slot);
     }, this.idleShutdownMs);
     this.idleTimer.unref();
   }
