@@ -15,7 +15,7 @@ import { loadConfig, type Config } from './config';
 import { openDataSource } from './db/dataSource';
 import { startJobQueue, stopJobQueue } from './jobs';
 import { UserEntity } from './auth/entities';
-import { describeSeed, seedDemo } from './db/seed';
+import { describeSeed, seedDemo } from './demo/seed';
 import { createMailer } from './mail/mailer';
 
 /** A file name carrying a content hash: the bundler's chunks (entry-<32 hex>.js) and assets (name.<32 hex>.ttf). */

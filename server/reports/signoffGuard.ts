@@ -8,8 +8,8 @@ import type { DataSource } from 'typeorm';
 import { FEW_CHAINS } from '../../shared/batches';
 import { signoffConcerns, type SignoffAcknowledgement, type SignoffConcern } from '../../shared/review';
 import type { LoadedBatch } from '../batches/service';
+import { badRequest } from '../errors';
 import { fitInfo } from '../review/compare';
-import { ReviewError } from '../review/service';
 
 export function concernsOf(dataSource: DataSource, batch: LoadedBatch): SignoffConcern[] {
   const fit = batch.row.fitId !== null ? fitInfo(dataSource, batch.row.studyId, batch.row.fitId) : null;
@@ -28,12 +28,7 @@ export function acknowledgementFor(concerns: SignoffConcern[], body: { acknowled
   if (concerns.length === 0) return null;
   const reason = body.acknowledgement?.reason?.trim() ?? '';
   if (!reason) {
-    throw new ReviewError(
-      400,
-      'acknowledgement_required',
-      `Signing off this report needs an acknowledgement with a reason: ${concerns.map((c) => c.message).join(' ')}`,
-      { concerns },
-    );
+    throw badRequest(`Signing off this report needs an acknowledgement with a reason: ${concerns.map((c) => c.message).join(' ')}`, { concerns }, 'acknowledgement_required');
   }
   return { concerns, reason };
 }

@@ -1,6 +1,6 @@
 /**
  * The journeys of issue 19 in Debian's chromium against the real server with the demo results
- * (server/review/demo.ts: two estimated models, a 100-chain batch each):
+ * (server/demo/results.ts: two estimated models, a 100-chain batch each):
  * - the compare screen's marks and captions, read from the screen and checked against the batches
  *   module's own /gof endpoint: p = value ± its Monte Carlo standard error sqrt(p(1 - p) / N)
  *   (Davison & Hinkley 1997, Bootstrap Methods and their Application, section 4.2.5; p kept 1/(N + 1)
@@ -19,9 +19,9 @@ import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { GofResponse } from '../../shared/batches';
 import type { CompareResponse } from '../../shared/review';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
-import { seedDemoResults, type DemoResults } from '../../server/review/demo';
+import { seedDemoResults, type DemoResults } from '../../server/demo/results';
 import { openBrowser, screenshot, signIn, startServer, type ViewportName, type WavefitServer } from './harness';
 
 let server: WavefitServer;
