@@ -6,8 +6,9 @@ import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { gofLoadSections } from './gofLoad';
+import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...gofLoadSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...webSections, ...gofLoadSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

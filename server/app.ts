@@ -2,11 +2,13 @@
  * Builds the Express app of the Wavefit API. No listening and no module-level state, so tests can
  * make many apps (each on its own database) in one process. main.ts adds the web app and listens.
  */
+import compression from 'compression';
 import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
 import { modelsRouter } from './models/routes';
+import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
@@ -37,6 +39,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   app.set('trust proxy', config.trustProxy);
   // Before every route, so the web app that main.ts adds gets the headers too.
   app.use(securityHeaders(config));
+  // gzip or brotli for every compressible answer above 1 kB (the API's JSON and the web app served after it).
+  app.use(compression());
 
   const smallJson = express.json({ limit: config.jsonLimit });
   const uploadJson = express.json({ limit: config.uploadJsonLimit });
@@ -63,6 +67,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', modelsRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   // Only when asked for explicitly (WAVEFIT_DEV_OUTBOX=1, never in production); admins only.
   if (config.devOutbox && !config.isProduction) api.use('/dev', devRouter(routeDeps));

@@ -87,6 +87,7 @@ export type ApiErrorCode =
   | 'batch_not_ready'
   | 'fit_not_running'
   | 'verdict_conflict'
+  | 'acknowledgement_required'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */
@@ -119,19 +120,22 @@ export const acceptInvitationBodySchema = z.object({
 });
 export type AcceptInvitationBody = z.infer<typeof acceptInvitationBodySchema>;
 
+/**
+ * GET /api/health. `devOutbox`: the server mounts the development outbox (WAVEFIT_DEV_OUTBOX=1, never
+ * in production; site admins only); clients treat a missing field as false.
+ */
+export interface HealthResponse {
+  ok: boolean;
+  version: string;
+  devOutbox?: boolean;
+}
+
 export interface UserInfo {
   id: number;
   email: string;
   name: string;
   isAdmin: boolean;
 }
-/** GET /health. devOutbox: whether GET /dev/outbox is mounted (WAVEFIT_DEV_OUTBOX=1, outside production). */
-export interface HealthResponse {
-  ok: true;
-  version: string;
-  devOutbox: boolean;
-}
-
 export interface SessionResponse {
   user: UserInfo;
   /** The same JWT as in the cookie, for scripts that use the bearer header. */

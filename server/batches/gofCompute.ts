@@ -6,7 +6,8 @@
  */
 import type { GofResponse } from '../../shared/batches';
 import { layoutOffsets } from './layout';
-import { gofOf, statisticSample, type LoadedBatch } from './service';
+import { gofOf, statisticSample } from './gof';
+import type { LoadedBatch } from './service';
 
 export interface StatisticGof {
   gof: GofResponse;

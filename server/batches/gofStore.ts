@@ -21,7 +21,10 @@ import { syncDb } from '../jobs';
 import { MATRICES_KEPT, computePeriodGof, type GofBatch, type StatisticGof } from './gofCompute';
 import { onBatchDone } from './gofHooks';
 import type { GofWorkerReply, GofWorkerRequest } from './gofWorker';
-import { BatchInputError, getBatch, periodMatrix, type LoadedBatch } from './service';
+import type { ApiErrorCode } from '../../shared/api';
+import { ApiError } from '../errors';
+import { periodMatrix } from './gof';
+import { getBatch, type LoadedBatch } from './service';
 
 export type { StatisticGof } from './gofCompute';
 
@@ -59,7 +62,8 @@ function gofWorker(): Worker {
     pending.delete(reply.id);
     if (!reply.ok && reply.needMatrix) return p.resend();
     if (reply.ok) p.resolve(reply.results);
-    else p.reject(reply.status ? new BatchInputError(reply.message, reply.status) : new Error(`gof worker: ${reply.message}`));
+    // A refusal (e.g. fewer than two chains) keeps its status; anything else is a server fault.
+    else p.reject(reply.status && reply.code ? new ApiError(reply.status, reply.code as ApiErrorCode, reply.message) : new Error(`gof worker: ${reply.message}`));
   });
   const fail = (error: Error) => {
     for (const p of pending.values()) p.reject(error);

@@ -20,7 +20,7 @@ export interface GofWorkerRequest {
 
 export type GofWorkerReply =
   | { id: number; ok: true; results: ReturnType<typeof computePeriodGof> }
-  | { id: number; ok: false; message: string; status?: number; needMatrix?: boolean };
+  | { id: number; ok: false; message: string; status?: number; code?: string; needMatrix?: boolean };
 
 const matrices = new Map<string, PeriodMatrix>();
 
@@ -39,8 +39,14 @@ parentPort!.on('message', (req: GofWorkerRequest) => {
     }
     reply = { id: req.id, ok: true, results: computePeriodGof(req.batch, matrix, req.period, req.coverages) };
   } catch (error) {
-    const status = (error as { status?: unknown }).status;
-    reply = { id: req.id, ok: false, message: error instanceof Error ? error.message : String(error), status: typeof status === 'number' ? status : undefined };
+    const { status, code } = error as { status?: unknown; code?: unknown };
+    reply = {
+      id: req.id,
+      ok: false,
+      message: error instanceof Error ? error.message : String(error),
+      status: typeof status === 'number' ? status : undefined,
+      code: typeof code === 'string' ? code : undefined,
+    };
   }
   parentPort!.postMessage(reply);
 });

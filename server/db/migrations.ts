@@ -11,11 +11,12 @@
  *    `name`: the database records applied migrations by name.
  * 4. tests/api/schema.test.ts fails while the entities and the migrations disagree.
  */
-import { Accounts1733100000001, Sessions1733100001300 } from '../auth/migration';
+import { Accounts1733100000001, Sessions1733100002000 } from '../auth/migration';
 import { StudyData1733100000002 } from '../data/migration';
 import { JobQueue1733100000500 } from '../jobs/migration';
-import { BatchGof1733100001400, Batches1733100000900 } from '../batches/migration';
+import { BatchGof1733100002100, Batches1733100000900 } from '../batches/migration';
 import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
+import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
 
-export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000, Review1733100001200, Sessions1733100001300, BatchGof1733100001400];
+export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000, Review1733100001200, SignoffAcknowledgement1733100001900, Sessions1733100002000, BatchGof1733100002100];

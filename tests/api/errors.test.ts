@@ -86,7 +86,7 @@ describe('unexpected failures', () => {
     await broken.close();
   });
 
-  it('health answers with the version', async () => {
+  it('health answers with the version and whether the dev outbox is mounted', async () => {
     const res = await request(t.app).get('/api/health');
     expect(res.body).toEqual({ ok: true, version: t.config.version, devOutbox: false });
   });
@@ -96,6 +96,7 @@ describe('unexpected failures', () => {
     const prod = await makeTestApp({ config: { isProduction: true, nodeEnv: 'production', devOutbox: true } });
     const res = await request(prod.app).get('/api/dev/outbox');
     expect(res.status).toBe(404);
+    expect((await request(prod.app).get('/api/health')).body.devOutbox).toBe(false);
     await prod.close();
   });
 });

@@ -9,7 +9,8 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BatchDetail, GofResponse, GofSummaryResponse } from '../../shared/batches';
 import { gofStoreFor } from '../../server/batches/gofStore';
-import { checkStatistic, getBatch, gofOf, periodMatrix } from '../../server/batches/service';
+import { checkStatistic, gofOf, periodMatrix } from '../../server/batches/gof';
+import { getBatch } from '../../server/batches/service';
 import { stopJobQueue } from '../../server/jobs';
 import { REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 

@@ -7,7 +7,7 @@
  */
 import request from 'supertest';
 import { describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { hashPassword, verifyPassword } from '../../server/auth/passwords';
 import { UserEntity } from '../../server/auth/entities';
 import { ADMIN, LEAD, REVIEWER, STATS, bearer, makeTestApp } from './helpers';

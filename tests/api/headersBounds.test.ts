@@ -7,7 +7,7 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadConfig } from '../../server/config';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
 import { serveWebApp } from '../../server/main';
 import { LEAD, STATS, bearer, makeTestApp, type TestApp } from './helpers';

@@ -7,7 +7,7 @@
 import jwt from 'jsonwebtoken';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 
 let t: TestApp;

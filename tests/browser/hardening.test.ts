@@ -6,7 +6,7 @@
  *   to sign-in with a plain sentence saying why.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD, DEMO_STUDY_NAME, DEMO_USERS } from '../../server/db/seed';
+import { DEMO_PASSWORD, DEMO_STUDY_NAME, DEMO_USERS } from '../../server/demo/seed';
 import { openBrowser, screenshot, signIn, startServer, type BrowserSession, type WavefitServer } from './harness';
 
 const LEAD = DEMO_USERS.find((u) => u.role === 'lead')!;
