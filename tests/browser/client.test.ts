@@ -207,7 +207,7 @@ describe('team and studies at the desktop width', () => {
 
       // The invitation e-mail (read from the server's outbox mailer) links to the invitation.
       await page.getByRole('link', { name: 'Account', exact: true }).click();
-      await page.getByRole('button', { name: 'Sign out' }).click();
+      await page.getByRole('button', { name: 'Sign out', exact: true }).click();
       await page.waitForURL(/\/sign-in/);
       const mail = server.mailer.messages().find((m) => m.to === invitee);
       const link = /https?:\/\/\S+\/invite\/[A-Za-z0-9_-]+/.exec(mail?.text ?? '')?.[0];
