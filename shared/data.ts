@@ -4,7 +4,15 @@
  * Endpoints (under /api, see shared/api.ts for auth and errors):
  *   POST /studies/:studyId/data                DataUploadBody -> DataUploadResponse (lead, statistician; replaces the study's data)
  *   GET  /studies/:studyId/data                               -> StudyDataResponse  (members)
+ *   POST /studies/:studyId/data/preview        DataUploadBody -> DataPreviewResponse (lead, statistician; stores nothing)
  *   GET  /studies/:studyId/data/waves/:index                  -> WaveTiesResponse   (members; index counts from 1)
+ *   GET  /studies/:studyId/data/layout                        -> DataLayoutResponse (members; one seeded layout for every wave)
+ *   GET  /studies/:studyId/data/waves/:index.csv              -> text/csv, the wave in the format it was uploaded in
+ *   GET  /studies/:studyId/data/actors.csv                    -> text/csv, the actors file (labels, covariates)
+ *
+ * Replacing data that models, fits or batches were built on needs `confirmReplace: true` in the
+ * body; without it the answer is 409 data_in_use with DataReplaceInfo in the details. While a fit or
+ * batch is queued or running, replacing is refused even with confirmation.
  *
  * File conventions (the client reads each file as text and sends it in the JSON body):
  * - Any file: UTF-8 text, at most MAX_FILE_BYTES (2 MB); a leading byte-order mark is ignored;
@@ -63,6 +71,8 @@ export const dataUploadBodySchema = z.object({
     .max(MAX_WAVES, `At most ${MAX_WAVES} waves can be uploaded.`),
   actors: z.object({ content: fileText, fileName }).optional(),
   missingMarker: z.string().trim().min(1, 'The missing marker cannot be empty.').max(20).default('NA'),
+  /** Replace data that stored models, fits or batches were built on (they become stale). */
+  confirmReplace: z.boolean().optional(),
 });
 export type DataUploadBody = z.input<typeof dataUploadBodySchema>;
 export type ParsedDataUploadBody = z.output<typeof dataUploadBodySchema>;
@@ -169,4 +179,42 @@ export interface WaveTiesResponse {
   ties: Array<[number, number]>;
   /** Pairs not observed, as [sender, receiver] positions. */
   missing: Array<[number, number]>;
+}
+
+// ---------- preview and replacing ----------
+
+/** What replacing the stored data would touch. */
+export interface DataReplaceInfo {
+  /** The study has stored data that an upload would replace. */
+  hasData: boolean;
+  models: number;
+  fits: number;
+  batches: number;
+  /** Fits and batches queued or running: replacing is refused until they end. */
+  running: number;
+  /** True when storing needs confirmReplace (models, fits or batches exist). */
+  needsConfirmation: boolean;
+  /** A plain sentence of what becomes stale, or null when nothing does. */
+  stale: string | null;
+}
+
+/** The answer of POST .../data/preview: the same parser as the upload, nothing stored. */
+export type DataPreviewResponse =
+  | {
+      ok: true;
+      preview: Omit<StudyDataResponse, 'uploadedAt' | 'hasData'>;
+      replace: DataReplaceInfo;
+    }
+  | {
+      ok: false;
+      message: string;
+      problems: DataProblem[];
+      truncated: boolean;
+      replace: DataReplaceInfo;
+    };
+
+export interface DataLayoutResponse {
+  actors: string[];
+  /** One position in [0, 1] x [0, 1] per actor, from the union of every wave's ties (seeded, so stable). */
+  positions: Array<[number, number]>;
 }

@@ -5,7 +5,7 @@
  * - studyDataView / waveTies: the API responses.
  */
 import type { DataSource, EntityManager } from 'typeorm';
-import type { StudyDataResponse, WaveTiesResponse } from '../../shared/data';
+import type { DataPreviewResponse, StudyDataResponse, WaveTiesResponse } from '../../shared/data';
 import { ActorEntity } from '../db/entities/Actor';
 import { CovariateEntity, type Covariate } from '../db/entities/Covariate';
 import { StudyEntity } from '../db/entities/Study';
@@ -21,13 +21,14 @@ export async function replaceStudyData(
   studyId: number,
   data: ParsedStudyData,
   guards: readonly DataReplaceGuard[] = DATA_REPLACE_GUARDS,
+  options: { confirmReplace?: boolean } = {},
 ): Promise<{ replaced: boolean }> {
   return dataSource.transaction(async (manager: EntityManager) => {
     const waves = manager.getRepository(WaveEntity);
     const replaced = (await waves.countBy({ studyId })) > 0;
     if (replaced) {
       for (const guard of guards) {
-        const refusal = await guard(manager, studyId);
+        const refusal = await guard(manager, studyId, { confirmed: options.confirmReplace === true });
         if (refusal) throw conflict('data_in_use', refusal);
       }
     }
@@ -132,6 +133,19 @@ export async function loadStudyData(dataSource: DataSource, studyId: number): Pr
 }
 
 // ---------- API views ----------
+
+/** The summaries of a parsed (not stored) upload: what the preview shows, from the same code as the stored view. */
+export function parsedDataView(data: ParsedStudyData): Extract<DataPreviewResponse, { ok: true }>['preview'] {
+  const n = data.actors.length;
+  return {
+    format: data.format,
+    actors: data.actors,
+    // stored covariates are read back by name (readRows); list them so here too
+    covariates: [...data.covariates].sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0)).map(summarizeCovariate),
+    waves: data.waves.map((w, k) => summarizeWave(k + 1, w.label, n, w.adjacency)),
+    changes: data.waves.slice(1).map((w, k) => compareWaves(k + 1, k + 2, n, data.waves[k].adjacency, w.adjacency)),
+  };
+}
 
 export async function studyDataView(dataSource: DataSource, studyId: number): Promise<StudyDataResponse> {
   const rows = await readRows(dataSource, studyId);
