@@ -70,6 +70,8 @@ export const dataUploadBodySchema = z.object({
     )
     .max(MAX_WAVES, `At most ${MAX_WAVES} waves can be uploaded.`),
   actors: z.object({ content: fileText, fileName }).optional(),
+  /** Pairs that cannot change (structural zeros and ones), see the file conventions above. */
+  fixedPairs: z.object({ content: fileText, fileName }).optional(),
   missingMarker: z.string().trim().min(1, 'The missing marker cannot be empty.').max(20).default('NA'),
   /** Replace data that stored models, fits or batches were built on (they become stale). */
   confirmReplace: z.boolean().optional(),
@@ -78,6 +80,20 @@ export type DataUploadBody = z.input<typeof dataUploadBodySchema>;
 export type ParsedDataUploadBody = z.output<typeof dataUploadBodySchema>;
 
 // ---------- problems ----------
+/** How problems name a wave file: 'wave "spring" (spring.csv)', or 'wave 2' without a label. */
+export function waveFileTitle(label: string, position: number, fileName?: string): string {
+  const base = label ? `wave "${label}"` : `wave ${position + 1}`;
+  return fileName && fileName !== label ? `${base} (${fileName})` : base;
+}
+/** How problems name the fixed-pairs file. */
+export function fixedPairsFileTitle(fileName?: string): string {
+  return fileName ? `fixed-pairs file (${fileName})` : 'fixed-pairs file';
+}
+/** How problems name the actors file. */
+export function actorsFileTitle(fileName?: string): string {
+  return fileName ? `actors file (${fileName})` : 'actors file';
+}
+
 export interface DataProblem {
   /** The file's name, e.g. 'wave "spring" (spring.csv)' or 'actors file'; '' for the upload as a whole. */
   file: string;
@@ -138,6 +154,8 @@ export interface WaveSummary {
   reciprocity: number | null;
   /** Ordered pairs (off the diagonal) not observed. */
   missing: number;
+  /** Actors not present at this wave (only when the actors file has present@ columns). */
+  absent?: number;
 }
 
 export interface WaveChange {
@@ -163,6 +181,21 @@ export interface StudyDataResponse {
   covariates: CovariateInfo[];
   waves: WaveSummary[];
   changes: WaveChange[];
+  /** Pairs whose tie cannot change, from the fixed-pairs file (absent when there is none). */
+  fixed?: FixedPairInfo[];
+  /** Number of fixed pairs (sender, receiver), when there are any. */
+  fixedPairs?: number;
+  /** Per actor (actor order) and wave: present in the group; absent when the actors file has no present@ columns. */
+  presence?: boolean[][];
+}
+
+export interface FixedPairInfo {
+  sender: string;
+  receiver: string;
+  /** 0: never a tie; 1: always a tie. */
+  value: 0 | 1;
+  /** Waves (from 1) in which it is fixed. */
+  waves: number[];
 }
 
 export interface DataUploadResponse extends StudyDataResponse {

@@ -11,6 +11,8 @@ import {
   type DataFormat,
   type DataProblemDetails,
   type ParsedDataUploadBody,
+  actorsFileTitle,
+  waveFileTitle,
 } from '../../shared/data';
 import { readCsv, type CsvRow } from './csv';
 import { ProblemList } from './problems';
@@ -60,10 +62,7 @@ interface SourceFile {
   rows: CsvRow[];
 }
 
-function waveFileName(label: string, position: number, fileName?: string): string {
-  const base = label ? `wave "${label}"` : `wave ${position + 1}`;
-  return fileName && fileName !== label ? `${base} (${fileName})` : base;
-}
+const waveFileName = waveFileTitle;
 
 /** Size, emptiness and CSV syntax; returns the rows, or null when the file cannot be read further. */
 function readFile(name: string, content: string, problems: ProblemList): SourceFile | null {
@@ -333,7 +332,7 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
     else labelSeen.set(w.label, k);
   });
 
-  const actorsName = body.actors?.fileName ? `actors file (${body.actors.fileName})` : 'actors file';
+  const actorsName = actorsFileTitle(body.actors?.fileName);
   const actorsSource = body.actors ? readFile(actorsName, body.actors.content, problems) : null;
   const waveSources = body.waves.map((w, k) => readFile(names[k], w.content, problems));
   const actorsFile = actorsSource ? parseActors(actorsSource, Math.max(waveCount, 2), marker, problems) : null;
