@@ -8,7 +8,8 @@
  *   GET  /studies/:studyId/data/waves/:index                  -> WaveTiesResponse   (members; index counts from 1)
  *   GET  /studies/:studyId/data/layout                        -> DataLayoutResponse (members; one seeded layout for every wave)
  *   GET  /studies/:studyId/data/waves/:index.csv              -> text/csv, the wave in the format it was uploaded in
- *   GET  /studies/:studyId/data/actors.csv                    -> text/csv, the actors file (labels, covariates)
+ *   GET  /studies/:studyId/data/actors.csv                    -> text/csv, the actors file (labels, covariates, presence)
+ *   GET  /studies/:studyId/data/fixed-pairs.csv               -> text/csv, the fixed pairs (404 when there are none)
  *
  * Replacing data that models, fits or batches were built on needs `confirmReplace: true` in the
  * body; without it the answer is 409 data_in_use with DataReplaceInfo in the details. While a fit or
@@ -36,6 +37,14 @@
  *   since the value at wave m acts in the period from wave m to m+1). With an actors file, its
  *   labels are the actor set and its order the actor order; without one, the actors are the labels
  *   met in the wave files, in order of first appearance.
+ * - Changing composition: columns `present@1` .. `present@M` of the actors file (all M, values 1 or
+ *   0) say in which waves an actor belongs to the group. An absent actor may have no ties in that
+ *   wave; in a period an actor acts only when present at both of its waves.
+ * - Fixed pairs ('fixedPairs', optional): one pair a line, `sender,receiver,value[,waves]`: value 0
+ *   (never a tie: a structural zero) or 1 (always a tie); waves as "2-3", "1 3" or "1;3", empty for
+ *   every wave. The waves must agree with the value (a missing observation takes it). A pair fixed
+ *   at both waves of a period with the same value never changes in that period, in fits and batches.
+ *   A header line sender,receiver,... is skipped as for edge lists.
  *
  * Problems are reported with the file, line and column (both counted from 1) and collected, up to
  * MAX_PROBLEMS, in the 400 error's details (DataProblemDetails, code data_invalid). Nothing stored

@@ -4,7 +4,9 @@
  * - a wave as an edge list `sender,receiver,value` (1 a tie, the missing marker for a pair not
  *   observed; absent pairs are not listed) or as a 0/1 matrix, whichever the study was uploaded as;
  * - the actors file: `label`, then each constant covariate, then each changing covariate as
- *   `name@1`, `name@2`, ... (the missing marker for a missing value).
+ *   `name@1`, `name@2`, ... (the missing marker for a missing value), then `present@1` ... when the
+ *   study has changing composition;
+ * - the fixed pairs as `sender,receiver,value,waves`.
  * Cells are neutralised against spreadsheet formula injection (csvCell in shared/csvCell.ts).
  */
 import { csvCell } from '../../shared/csvCell';
@@ -61,5 +63,12 @@ export function formatActorsCsv(
     for (const e of extra) cells.push(e.values[i]);
     lines.push(line(cells));
   });
+  return lines.join('\n') + '\n';
+}
+
+/** Fixed pairs in the upload's fixed-pairs format: one line per pair and value, the waves as "1 2 3". */
+export function formatFixedPairsCsv(pairs: ReadonlyArray<{ sender: string; receiver: string; value: 0 | 1; waves: number[] }>): string {
+  const lines = [line(['sender', 'receiver', 'value', 'waves'])];
+  for (const p of pairs) lines.push(line([p.sender, p.receiver, String(p.value), p.waves.join(' ')]));
   return lines.join('\n') + '\n';
 }

@@ -10,8 +10,9 @@ import { CovariateEntity } from '../db/entities/Covariate';
 import { WaveEntity } from '../db/entities/Wave';
 import { deriveSeed } from '../engine/prng';
 import { seededLayout } from '../review/layout';
-import { formatActorsCsv, formatEdgeListCsv, formatMatrixCsvSafe } from './download';
-import { TIE_PRESENT } from './parse';
+import { formatActorsCsv, formatEdgeListCsv, formatFixedPairsCsv, formatMatrixCsvSafe } from './download';
+import { PRESENCE_COLUMN, TIE_PRESENT } from './parse';
+import { studyDataView } from './store';
 
 async function actorLabels(dataSource: DataSource, studyId: number): Promise<string[]> {
   const actors = await dataSource.getRepository(ActorEntity).find({ where: { studyId }, order: { index: 'ASC' } });
@@ -30,7 +31,18 @@ export async function downloadActors(dataSource: DataSource, studyId: number): P
   const actors = await actorLabels(dataSource, studyId);
   if (actors.length === 0) return null;
   const covariates = await dataSource.getRepository(CovariateEntity).find({ where: { studyId }, order: { name: 'ASC' } });
-  return formatActorsCsv(actors, covariates.map((c) => ({ ...c, changing: Boolean(c.changing) })));
+  const waves = await dataSource.getRepository(WaveEntity).find({ where: { studyId }, order: { index: 'ASC' } });
+  const presence = waves.some((w) => w.present)
+    ? waves.map((w) => ({ name: `${PRESENCE_COLUMN}@${w.index}`, values: actors.map((_, i) => (w.present && w.present[i] === 0 ? '0' : '1')) }))
+    : [];
+  return formatActorsCsv(actors, covariates.map((c) => ({ ...c, changing: Boolean(c.changing) })), 'NA', presence);
+}
+
+/** The fixed pairs as `sender,receiver,value,waves` (waves as a space-separated list), or null when there are none. */
+export async function downloadFixedPairs(dataSource: DataSource, studyId: number): Promise<string | null> {
+  const view = await studyDataView(dataSource, studyId);
+  if (!view.fixed?.length) return null;
+  return formatFixedPairsCsv(view.fixed);
 }
 
 /** A ForceAtlas2 layout of the union of every wave's ties, from a seed fixed per study. */

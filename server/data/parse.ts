@@ -12,6 +12,7 @@ import {
   type DataProblemDetails,
   type ParsedDataUploadBody,
   actorsFileTitle,
+  fixedPairsFileTitle,
   waveFileTitle,
 } from '../../shared/data';
 import { readCsv, type CsvRow } from './csv';
@@ -37,6 +38,10 @@ export interface ParsedCovariate {
 export interface ParsedWave {
   label: string;
   adjacency: Uint8Array;
+  /** n*n, 1 where the pair's tie is fixed at this wave (its value is in `adjacency`); absent without a fixed-pairs file. */
+  fixed?: Uint8Array;
+  /** n, 1 where the actor is present at this wave; absent without present@ columns. */
+  present?: Uint8Array;
 }
 
 export interface ParsedStudyData {
@@ -97,7 +102,12 @@ function checkLabel(label: string, file: string, line: number, column: number, p
 interface ActorsFile {
   labels: string[];
   covariates: ParsedCovariate[];
+  /** Per wave, per actor: 1 present, 0 absent (from present@1 .. present@M), or null without those columns. */
+  presence: Uint8Array[] | null;
 }
+
+/** Columns present@1 .. present@M of the actors file say in which waves an actor belongs to the group. */
+export const PRESENCE_COLUMN = 'present';
 
 function parseActors(file: SourceFile, waveCount: number, missingMarker: string, problems: ProblemList): ActorsFile | null {
   const [header, ...body] = file.rows;
@@ -114,6 +124,7 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
   const constant = new Map<string, number>(); // name -> field position
   const changing = new Map<string, Map<number, number>>(); // name -> wave -> field position
   const seen = new Map<string, number>();
+  const presenceColumns = new Map<number, number>(); // wave -> field position
   let headerOk = true;
   header.fields.slice(1).forEach((raw, k) => {
     const column = k + 2;
@@ -128,7 +139,9 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
     }
     seen.set(raw, column);
     const match = CHANGING.exec(raw);
-    if (match) {
+    if (match && match[1] === PRESENCE_COLUMN) {
+      presenceColumns.set(Number(match[2]), k + 1);
+    } else if (match) {
       const waves = changing.get(match[1]) ?? new Map<number, number>();
       waves.set(Number(match[2]), k + 1);
       changing.set(match[1], waves);
@@ -136,6 +149,27 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
       constant.set(raw, k + 1);
     }
   });
+  if (constant.has(PRESENCE_COLUMN)) {
+    problems.add(
+      file.name,
+      `"${PRESENCE_COLUMN}" is the name of the presence columns; give one per wave, "${PRESENCE_COLUMN}@1" to "${PRESENCE_COLUMN}@${waveCount}", with 1 (present) or 0 (absent).`,
+      header.line,
+      constant.get(PRESENCE_COLUMN)! + 1,
+    );
+    headerOk = false;
+  }
+  if (presenceColumns.size > 0) {
+    const numbers = [...presenceColumns.keys()].sort((a, b) => a - b);
+    if (numbers.length !== waveCount || !numbers.every((w, k) => w === k + 1)) {
+      problems.add(
+        file.name,
+        `The presence columns must be "${PRESENCE_COLUMN}@1" to "${PRESENCE_COLUMN}@${waveCount}", one per wave; found @${numbers.join(', @')}.`,
+        header.line,
+        presenceColumns.get(numbers[0])! + 1,
+      );
+      headerOk = false;
+    }
+  }
   for (const [name, waves] of changing) {
     if (constant.has(name)) {
       problems.add(file.name, `"${name}" is both a constant column and a changing one ("${name}@…"); use one form.`, header.line, constant.get(name)! + 1);
@@ -157,6 +191,7 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
 
   const labels: string[] = [];
   const firstLine = new Map<string, number>();
+  const lineOf = firstLine;
   const cells: string[][] = [];
   for (const row of body) {
     if (row.fields.length !== header.fields.length) {
@@ -194,11 +229,29 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
     const categories = kind === 'categorical' ? [...new Set(observed)].sort((a, b) => a.localeCompare(b, 'en')) : [];
     covariates.push({ name, kind, changing: isChanging, categories, values });
   };
-  for (const [name, position] of constant) build(name, [position], false);
+  for (const [name, position] of constant) if (name !== PRESENCE_COLUMN) build(name, [position], false);
   for (const [name, waves] of changing) {
     build(name, [...waves.keys()].sort((a, b) => a - b).map((w) => waves.get(w)!), true);
   }
-  return { labels, covariates };
+  let presence: Uint8Array[] | null = null;
+  if (presenceColumns.size > 0) {
+    presence = Array.from({ length: waveCount }, () => new Uint8Array(labels.length));
+    cells.forEach((row, i) => {
+      for (let w = 1; w <= waveCount; w++) {
+        const position = presenceColumns.get(w)!;
+        const v = row[position];
+        if (v === '1') presence![w - 1][i] = 1;
+        else if (v !== '0') {
+          problems.add(file.name, `"${PRESENCE_COLUMN}@${w}" of "${row[0]}" is "${v}"; write 1 (present at wave ${w}) or 0 (absent).`, lineOf.get(row[0])!, position + 1);
+        }
+      }
+    });
+    presence.forEach((p, w) => {
+      const count = p.reduce((a, b) => a + b, 0);
+      if (count < 2 && labels.length >= 2) problems.add(file.name, `Only ${count} actor${count === 1 ? ' is' : 's are'} present at wave ${w + 1}; a wave needs at least 2.`, header.line, presenceColumns.get(w + 1)! + 1);
+    });
+  }
+  return { labels, covariates, presence };
 }
 
 // ---------- edge lists ----------
@@ -254,6 +307,8 @@ interface MatrixFile {
   /** Row-major codes in the file's own order. */
   cells: Uint8Array;
   headerLine: number;
+  /** Line of each row, in the file's order. */
+  rowLines: number[];
 }
 
 function parseMatrix(file: SourceFile, missingMarker: string, problems: ProblemList): MatrixFile | null {
@@ -312,7 +367,78 @@ function parseMatrix(file: SourceFile, missingMarker: string, problems: ProblemL
       cells[i * n + j] = code;
     }
   });
-  return problems.count > start ? null : { labels, cells, headerLine: header.line };
+  return problems.count > start ? null : { labels, cells, headerLine: header.line, rowLines: body.slice(0, n).map((r) => r.line) };
+}
+
+
+// ---------- fixed pairs ----------
+
+interface FixedEntry {
+  sender: number;
+  receiver: number;
+  value: number;
+  /** Wave positions from 0. */
+  waves: number[];
+  line: number;
+}
+
+/** "2-3", "1 3", "1;3" or empty (every wave) -> wave positions from 0; null with a problem on bad text. */
+function parseWaveList(raw: string, waveCount: number): { waves: number[] } | { error: string } {
+  if (raw.trim() === '') return { waves: Array.from({ length: waveCount }, (_, k) => k) };
+  const out = new Set<number>();
+  for (const token of raw.trim().split(/[\s;]+/)) {
+    const m = /^(\d+)(?:-(\d+))?$/.exec(token);
+    if (!m) return { error: `"${raw}" is not a list of waves; write e.g. "2-3" or "1 3", or leave it empty for every wave.` };
+    const a = Number(m[1]);
+    const b = m[2] === undefined ? a : Number(m[2]);
+    if (a < 1 || b > waveCount || a > b) return { error: `Waves "${token}" do not exist: the upload has waves 1 to ${waveCount}.` };
+    for (let w = a; w <= b; w++) out.add(w - 1);
+  }
+  return { waves: [...out].sort((x, y) => x - y) };
+}
+
+function parseFixedPairs(file: SourceFile, index: Map<string, number>, waveCount: number, problems: ProblemList): FixedEntry[] {
+  const entries: FixedEntry[] = [];
+  const firstSeen = new Map<string, number>();
+  file.rows.forEach((row, k) => {
+    const f = row.fields;
+    if (k === 0 && f.length >= 2 && HEADER_PAIRS.some(([a, b]) => f[0].toLowerCase() === a && f[1].toLowerCase() === b)) return;
+    if (f.length < 3 || f.length > 4) {
+      problems.add(file.name, `Expected "sender,receiver,value" and optionally the waves; this line has ${f.length} field${f.length === 1 ? '' : 's'}.`, row.line);
+      return;
+    }
+    const [sender, receiver, value] = f;
+    const s = index.get(sender);
+    const r = index.get(receiver);
+    if (s === undefined || r === undefined) {
+      const unknown = s === undefined ? sender : receiver;
+      problems.add(file.name, `Unknown actor "${unknown}": not among the actors of the upload.`, row.line, s === undefined ? 1 : 2);
+      return;
+    }
+    if (s === r) {
+      problems.add(file.name, `"${sender}" is paired with themself; ties to oneself never exist, so they need no fixing.`, row.line, 2);
+      return;
+    }
+    if (value !== '0' && value !== '1') {
+      problems.add(file.name, `The fixed value "${value}" is not 0 (never a tie) or 1 (always a tie).`, row.line, 3);
+      return;
+    }
+    const list = parseWaveList(f[3] ?? '', waveCount);
+    if ('error' in list) {
+      problems.add(file.name, list.error, row.line, 4);
+      return;
+    }
+    for (const w of list.waves) {
+      const key = `${s},${r},${w}`;
+      if (firstSeen.has(key)) {
+        problems.add(file.name, `The pair "${sender}" → "${receiver}" is fixed twice at wave ${w + 1} (first on line ${firstSeen.get(key)}).`, row.line, 1);
+        return;
+      }
+    }
+    for (const w of list.waves) firstSeen.set(`${s},${r},${w}`, row.line);
+    entries.push({ sender: s, receiver: r, value: Number(value), waves: list.waves, line: row.line });
+  });
+  return entries;
 }
 
 // ---------- the whole upload ----------
@@ -335,6 +461,8 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
   const actorsName = actorsFileTitle(body.actors?.fileName);
   const actorsSource = body.actors ? readFile(actorsName, body.actors.content, problems) : null;
   const waveSources = body.waves.map((w, k) => readFile(names[k], w.content, problems));
+  const fixedName = fixedPairsFileTitle(body.fixedPairs?.fileName);
+  const fixedSource = body.fixedPairs ? readFile(fixedName, body.fixedPairs.content, problems) : null;
   const actorsFile = actorsSource ? parseActors(actorsSource, Math.max(waveCount, 2), marker, problems) : null;
 
   let actors: string[] | null = actorsFile?.labels ?? null;
@@ -360,6 +488,13 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
           if (s === undefined || r === undefined) {
             const label = s === undefined ? e.sender : e.receiver;
             problems.add(names[k], `Unknown actor "${label}": not in the actors file.`, e.line, s === undefined ? 1 : 2);
+            ok = false;
+            continue;
+          }
+          const present = actorsFile?.presence?.[k];
+          if (present && e.value === TIE_PRESENT && (!present[s] || !present[r])) {
+            const away = !present[s] ? e.sender : e.receiver;
+            problems.add(names[k], `"${away}" is not present at wave ${k + 1} (${PRESENCE_COLUMN}@${k + 1} is 0 in the actors file), so this tie cannot be there.`, e.line, !present[s] ? 1 : 2);
             ok = false;
             continue;
           }
@@ -401,8 +536,52 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
         for (let i = 0; i < n; i++) {
           for (let j = 0; j < n; j++) adjacency[position[i] * n + position[j]] = m.cells[i * m.labels.length + j];
         }
-        waves.push({ label: body.waves[k].label, adjacency });
+        const present = actorsFile?.presence?.[k];
+        let ok = true;
+        if (present) {
+          for (let i = 0; i < n; i++) {
+            for (let j = 0; j < n; j++) {
+              const [a, b] = [position[i], position[j]];
+              if (m.cells[i * n + j] === TIE_PRESENT && (!present[a] || !present[b])) {
+                const away = !present[a] ? m.labels[i] : m.labels[j];
+                problems.add(names[k], `"${away}" is not present at wave ${k + 1} (${PRESENCE_COLUMN}@${k + 1} is 0 in the actors file), so the tie "${m.labels[i]}" → "${m.labels[j]}" cannot be there.`, m.rowLines[i], j + 2);
+                ok = false;
+              }
+            }
+          }
+        }
+        if (ok) waves.push({ label: body.waves[k].label, adjacency });
       });
+    }
+  }
+
+  if (actors && actorsFile?.presence && waves.length === waveCount) {
+    waves.forEach((w, k) => (w.present = actorsFile.presence![k]));
+  }
+  if (fixedSource && actors) {
+    const index = new Map(actors.map((a, i) => [a, i]));
+    const n = actors.length;
+    const fixed = parseFixedPairs(fixedSource, index, waveCount, problems);
+    if (waves.length === waveCount) {
+      const masks = waves.map(() => new Uint8Array(n * n));
+      for (const f of fixed) {
+        const k = f.sender * n + f.receiver;
+        for (const w of f.waves) {
+          const observed = waves[w].adjacency[k];
+          if (observed !== TIE_MISSING && observed !== f.value) {
+            problems.add(
+              fixedName,
+              `The pair "${actors[f.sender]}" → "${actors[f.receiver]}" is fixed at ${f.value} (${f.value ? 'always a tie' : 'never a tie'}), but wave ${w + 1} ${observed ? 'has this tie' : 'does not have it'}.`,
+              f.line,
+              3,
+            );
+            continue;
+          }
+          waves[w].adjacency[k] = f.value;
+          masks[w][k] = 1;
+        }
+      }
+      waves.forEach((w, k) => (w.fixed = masks[k]));
     }
   }
 

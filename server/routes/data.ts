@@ -8,7 +8,7 @@
 import { Router } from 'express';
 import { dataUploadBodySchema, type DataPreviewResponse, type DataUploadResponse, type ParsedDataUploadBody } from '../../shared/data';
 import { currentStudy } from '../auth/context';
-import { dataLayout, downloadActors, downloadWave } from '../data/exports';
+import { dataLayout, downloadActors, downloadFixedPairs, downloadWave } from '../data/exports';
 import { parseUpload } from '../data/parse';
 import { dataReplaceInfo } from '../data/replaceGuards';
 import { parsedDataView, replaceStudyData, studyDataView, waveTies } from '../data/store';
@@ -90,6 +90,13 @@ export function dataRouter(deps: RouteDeps): Router {
     const csv = await downloadActors(dataSource, study.id);
     if (csv === null) throw notFound('This study has no data yet.');
     res.type('text/csv; charset=utf-8').attachment(`study-${study.id}-actors.csv`).send(csv);
+  });
+
+  router.get('/:studyId/data/fixed-pairs.csv', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
+    const { study } = currentStudy(req);
+    const csv = await downloadFixedPairs(dataSource, study.id);
+    if (csv === null) throw notFound('This study has no fixed pairs.');
+    res.type('text/csv; charset=utf-8').attachment(`study-${study.id}-fixed-pairs.csv`).send(csv);
   });
 
   router.get('/:studyId/data/waves/:index.csv', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
