@@ -10,7 +10,7 @@
  * Cells are neutralised against spreadsheet formula injection (csvCell in shared/csvCell.ts).
  */
 import { csvCell } from '../../shared/csvCell';
-import type { Covariate } from '../db/entities/Covariate';
+import type { Covariate } from './entities';
 import { TIE_MISSING, TIE_PRESENT } from './parse';
 
 const line = (cells: string[]) => cells.map(csvCell).join(',');
@@ -29,7 +29,7 @@ export function formatEdgeListCsv(actors: readonly string[], adjacency: Uint8Arr
   return lines.join('\n') + '\n';
 }
 
-export function formatMatrixCsvSafe(actors: readonly string[], adjacency: Uint8Array, missingMarker = 'NA'): string {
+export function formatMatrixCsv(actors: readonly string[], adjacency: Uint8Array, missingMarker = 'NA'): string {
   const n = actors.length;
   const lines = [line(['', ...actors])];
   for (let i = 0; i < n; i++) {

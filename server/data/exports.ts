@@ -5,12 +5,10 @@
  */
 import type { DataSource } from 'typeorm';
 import type { DataLayoutResponse } from '../../shared/data';
-import { ActorEntity } from '../db/entities/Actor';
-import { CovariateEntity } from '../db/entities/Covariate';
-import { WaveEntity } from '../db/entities/Wave';
+import { ActorEntity, CovariateEntity, WaveEntity } from './entities';
 import { deriveSeed } from '../engine/prng';
-import { seededLayout } from '../review/layout';
-import { formatActorsCsv, formatEdgeListCsv, formatFixedPairsCsv, formatMatrixCsvSafe } from './download';
+import { seededLayout } from './layout';
+import { formatActorsCsv, formatEdgeListCsv, formatFixedPairsCsv, formatMatrixCsv } from './download';
 import { PRESENCE_COLUMN, TIE_PRESENT } from './parse';
 import { studyDataView } from './store';
 
@@ -24,7 +22,7 @@ export async function downloadWave(dataSource: DataSource, studyId: number, inde
   if (!wave) return null;
   const actors = await actorLabels(dataSource, studyId);
   const adjacency = new Uint8Array(wave.adjacency);
-  return wave.sourceFormat === 'matrix' ? formatMatrixCsvSafe(actors, adjacency) : formatEdgeListCsv(actors, adjacency);
+  return wave.sourceFormat === 'matrix' ? formatMatrixCsv(actors, adjacency) : formatEdgeListCsv(actors, adjacency);
 }
 
 export async function downloadActors(dataSource: DataSource, studyId: number): Promise<string | null> {

@@ -595,21 +595,3 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
   }
   return { ok: true, data: { format: body.format, actors, waves, covariates: actorsFile?.covariates ?? [] } };
 }
-
-// ---------- writing ----------
-
-/** Writes a wave as an adjacency-matrix CSV in the upload format (labels in the first row and column). */
-export function formatMatrixCsv(actors: readonly string[], adjacency: Uint8Array, missingMarker = 'NA'): string {
-  const n = actors.length;
-  const quote = (s: string) => (/[",;\t]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
-  const lines = [['', ...actors.map(quote)].join(',')];
-  for (let i = 0; i < n; i++) {
-    const cells: string[] = [quote(actors[i])];
-    for (let j = 0; j < n; j++) {
-      const v = adjacency[i * n + j];
-      cells.push(v === TIE_MISSING ? missingMarker : String(v));
-    }
-    lines.push(cells.join(','));
-  }
-  return lines.join('\n') + '\n';
-}

@@ -10,7 +10,7 @@
 import { In, type EntityManager } from 'typeorm';
 import type { DataReplaceInfo } from '../../shared/data';
 import { BatchEntity } from '../batches/entities';
-import { WaveEntity } from '../db/entities/Wave';
+import { WaveEntity } from './entities';
 import { FitEntity, ModelSpecEntity } from '../models/entities';
 
 export interface ReplaceContext {

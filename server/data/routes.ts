@@ -8,12 +8,12 @@
 import { Router } from 'express';
 import { dataUploadBodySchema, type DataPreviewResponse, type DataUploadResponse, type ParsedDataUploadBody } from '../../shared/data';
 import { currentStudy } from '../auth/context';
-import { dataLayout, downloadActors, downloadFixedPairs, downloadWave } from '../data/exports';
-import { parseUpload } from '../data/parse';
-import { dataReplaceInfo } from '../data/replaceGuards';
-import { parsedDataView, replaceStudyData, studyDataView, waveTies } from '../data/store';
+import { dataLayout, downloadActors, downloadFixedPairs, downloadWave } from './exports';
+import { parseUpload } from './parse';
+import { dataReplaceInfo } from './replaceGuards';
+import { parsedDataView, replaceStudyData, studyDataView, waveTies } from './store';
 import { ApiError, idParam, notFound, validate } from '../errors';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 function problemCount(problems: unknown[], truncated: boolean): string {
   return truncated ? `More than ${problems.length} problems` : `${problems.length} problem${problems.length === 1 ? '' : 's'}`;
