@@ -314,6 +314,7 @@ export function UploadScreen() {
             variant="secondary"
             onPress={() => setEntries((prev) => [...prev, newEntry(nextId(), { name: `pasted-${ids.current + 1}.csv`, content: '', bytes: 0, tooLarge: false, pasted: true }, prev)])}
           />
+          {entries.length > 1 ? <Button label="Remove all files" variant="quiet" icon="trash" onPress={() => setEntries([])} testID="remove-all" /> : null}
         </ButtonRow>
         {entries.length === 0 ? <Text variant="caption">No files yet.</Text> : null}
         {entries.map((e) => (
