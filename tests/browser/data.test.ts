@@ -175,6 +175,82 @@ describe.each<ViewportName>(['phone', 'desktop'])('a statistician on a %s', (vie
       expect(rows[0].actorCount).toBe(12);
       expect(rows[0].fitId).not.toBeNull();
       await screenshot(page, 'data-batch', viewport);
+
+      // Replacing the data now: the screen says what becomes stale and stores only after the tick.
+      for (let i = 0; i < 300; i++) {
+        const { batch } = await apiGet<{ batch: { state: string } }>(page, `/studies/${studyId}/batches/${batchId}`);
+        if (batch.state !== 'queued' && batch.state !== 'running') break;
+        await page.waitForTimeout(200);
+      }
+      await page.goto(`${server.baseUrl}/studies/${studyId}/data`);
+      await page.getByRole('button', { name: 'Upload new data' }).click();
+      await page.waitForURL(new RegExp(`/studies/${studyId}/data/upload$`));
+      await page.getByTestId('file-input').setInputFiles(
+        ['wave1.csv', 'wave2.csv', 'actors.csv'].map((f) => ({ name: f, mimeType: 'text/csv', buffer: Buffer.from(file(f)) })),
+      );
+      await page.getByTestId('upload-preview').waitFor();
+      const warning = page.getByTestId('replace-warning');
+      await expect.poll(() => warning.innerText()).toContain('1 model, 1 fit, 1 batch were built on the data stored now.');
+      expect(await page.getByTestId('store-data').isDisabled()).toBe(true);
+      await warning.scrollIntoViewIfNeeded();
+      await screenshot(page, 'data-replace-confirm', viewport);
+      await page.getByTestId('confirm-replace').click();
+      await page.getByTestId('store-data').click();
+      await page.waitForURL(new RegExp(`/studies/${studyId}/data\\?stored=1$`));
+      await page.getByTestId('stored-banner').getByText('Stored 2 waves of 12 actors and 3 covariates.').waitFor();
+      expect(b.pageErrors).toEqual([]);
+    } finally {
+      await b.close();
+    }
+  });
+});
+
+describe('fixed pairs and changing composition on a phone', () => {
+  it('uploads them with the waves, and the waves screen shows them', async () => {
+    const b = await openBrowser('phone');
+    try {
+      const { page } = b;
+      await page.goto(`${server.baseUrl}/sign-in`);
+      await signIn(page, STATS, DEMO_PASSWORD);
+      await page.waitForURL((u) => u.pathname === '/');
+      await page.goto(`${server.baseUrl}/studies/new`);
+      await page.getByLabel('Name', { exact: true }).fill('Quay watch with newcomers');
+      await page.getByRole('button', { name: 'Create study' }).click();
+      await page.waitForURL(/\/studies\/\d+$/);
+      const studyId = Number(new URL(page.url()).pathname.split('/')[2]);
+      await page.goto(`${server.baseUrl}/studies/${studyId}/data/upload`);
+      // Zeno joins at wave 2 (no ties in wave 1); Maren never advises Zeno (a structural zero).
+      const w1 = file('wave1.csv').split('\n').filter((l) => !l.includes('Zeno')).join('\n');
+      const actors = file('actors.csv')
+        .split('\n')
+        .map((l, k) => (l === '' ? l : k === 0 ? `${l},present@1,present@2,present@3` : `${l},${l.startsWith('Zeno,') ? 0 : 1},1,1`))
+        .join('\n');
+      const fixed = 'sender,receiver,value,waves\nMaren,Zeno,0,\n';
+      expect(file('wave2.csv') + file('wave3.csv')).not.toContain('Maren,Zeno');
+      await page.getByTestId('file-input').setInputFiles([
+        { name: 'wave1.csv', mimeType: 'text/csv', buffer: Buffer.from(w1) },
+        { name: 'wave2.csv', mimeType: 'text/csv', buffer: Buffer.from(file('wave2.csv')) },
+        { name: 'wave3.csv', mimeType: 'text/csv', buffer: Buffer.from(file('wave3.csv')) },
+        { name: 'actors.csv', mimeType: 'text/csv', buffer: Buffer.from(actors) },
+        { name: 'fixed-pairs.csv', mimeType: 'text/csv', buffer: Buffer.from(fixed) },
+      ]);
+      const preview = page.getByTestId('upload-preview');
+      await preview.waitFor();
+      expect(await preview.innerText()).toContain('12 actors, 3 waves, 3 covariates, 1 fixed pair.');
+      expect(await page.getByTestId('preview-wave-1').innerText()).toContain('1 actor not present');
+      await page.getByTestId('store-data').click();
+      await page.waitForURL(new RegExp(`/studies/${studyId}/data\\?stored=1$`));
+      const fixedCard = page.getByTestId('fixed-pairs');
+      await fixedCard.waitFor();
+      expect(await fixedCard.innerText()).toMatch(/Maren\s*→\s*Zeno: never a tie at waves 1, 2, 3/);
+      expect(await page.getByTestId('presence').innerText()).toMatch(/Zeno: present at waves 2, 3/);
+      // the waves table counts only present actors at wave 1
+      const data = await apiGet<StudyDataResponse>(page, `/studies/${studyId}/data`);
+      expect(data.waves[0].absent).toBe(1);
+      expect(data.waves[0].density).toBeCloseTo(data.waves[0].ties / (11 * 10), 12);
+      await page.getByTestId('wave-drawing-1').locator('svg').waitFor();
+      await page.getByTestId('fixed-pairs').scrollIntoViewIfNeeded();
+      await screenshot(page, 'data-fixed-presence', 'phone');
       expect(b.pageErrors).toEqual([]);
     } finally {
       await b.close();
