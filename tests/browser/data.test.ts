@@ -163,6 +163,7 @@ describe.each<ViewportName>(['phone', 'desktop'])('a statistician on a %s', (vie
       await page.waitForURL(new RegExp(`/studies/${studyId}/models/\\d+$`));
       await page.getByTestId('fit-start').click();
       await page.waitForURL(new RegExp(`/studies/${studyId}/models/\\d+/fits/\\d+$`));
+      const fitUrl = page.url();
       await page.locator('[data-testid="fit-converged"], [data-testid="fit-not-converged"]').first().waitFor({ timeout: 150_000 });
       await screenshot(page, 'data-fit', viewport);
 
@@ -198,6 +199,12 @@ describe.each<ViewportName>(['phone', 'desktop'])('a statistician on a %s', (vie
       await page.getByTestId('store-data').click();
       await page.waitForURL(new RegExp(`/studies/${studyId}/data\\?stored=1$`));
       await page.getByTestId('stored-banner').getByText('Stored 2 waves of 12 actors and 3 covariates.').waitFor();
+      // the fit and the batch made on the old data now say so
+      await page.goto(fitUrl);
+      await page.getByTestId('stale-data').getByText(/after this fit was made: its estimates describe the old data/).waitFor();
+      await page.goto(`${server.baseUrl}/studies/${studyId}/batches/${batchId}`);
+      await page.getByTestId('stale-data').getByText(/after this batch was made/).waitFor();
+      await screenshot(page, 'data-stale-batch', viewport);
       expect(b.pageErrors).toEqual([]);
     } finally {
       await b.close();
