@@ -64,7 +64,8 @@ export function guessFormat(content: string): DataFormat {
 
 export function newEntry(id: string, file: { name: string; content: string; bytes: number; tooLarge: boolean; pasted?: boolean }, existing: UploadEntry[]): UploadEntry {
   const taken = existing.filter((e) => e.role === 'wave').map((e) => e.wave);
-  const { role, wave } = guessRole(file.name, file.content, taken);
+  // a pasted text takes the next free wave (its made-up name carries no wave number)
+  const { role, wave } = guessRole(file.pasted ? 'pasted.csv' : file.name, file.content, taken);
   return { id, name: file.name, content: file.content, bytes: file.bytes, tooLarge: file.tooLarge, pasted: Boolean(file.pasted), role, wave, label: baseName(file.name) };
 }
 

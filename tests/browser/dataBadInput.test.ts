@@ -238,6 +238,14 @@ describe('the README tour, step 2 (Data), and the reviewer', () => {
       // the demo study has no models or batches at start: replacing is announced but needs no tick
       await page.getByTestId('replace-warning').getByText('Storing replaces the data this study holds now.').waitFor();
       await screenshot(page, 'data-caution-preview', 'desktop');
+
+      // pasted CSV text instead of files: the same preview
+      await page.getByTestId('remove-all').click();
+      for (const text of ['Ari,Bex\nBex,Cato\n', 'Ari,Bex\nCato,Ari\n']) {
+        await page.getByRole('button', { name: 'Paste CSV text' }).click();
+        await page.getByLabel(/^CSV text of pasted-\d+\.csv$/).last().fill(text);
+      }
+      await expect.poll(async () => (await page.getByTestId('upload-preview').innerText().catch(() => '')).includes('3 actors, 2 waves, 0 covariates.')).toBe(true);
       await b.close();
 
       const r = await openBrowser('phone');
