@@ -212,7 +212,8 @@ export function UploadScreen() {
   const router = useRouter();
   const study = useStudy(studyId);
   const { preview: askPreview, store } = useDataMutations(studyId ?? 0);
-  const { compact } = useBreakpoint();
+  const { compact, breakpoint } = useBreakpoint();
+  const wide = breakpoint === 'wide';
   const [entries, setEntries] = useState<UploadEntry[]>([]);
   const [format, setFormat] = useState<DataFormat | null>(null);
   const [marker, setMarker] = useState('NA');
@@ -302,6 +303,8 @@ export function UploadScreen() {
 
   return (
     <Screen overline={study.data.study.name} title="Upload data" subtitle="Waves as edge lists or 0/1 matrices, and an actors file with covariates." above={back}>
+      <View style={wide ? { flexDirection: 'row', gap: space.s3, alignItems: 'flex-start' } : { gap: space.s3 }}>
+        <View style={wide ? { flex: 3, gap: space.s3, minWidth: 0 } : { gap: space.s3 }}>
       <Section title="1. Files">
         <Text variant="muted">
           Choose all files at once or one by one: each wave of the network, the actors file, and if needed a file of fixed pairs. Choosing a file with the same name again
@@ -345,6 +348,8 @@ export function UploadScreen() {
         ) : null}
       </Section>
 
+        </View>
+        <View style={wide ? { flex: 2, gap: space.s3, minWidth: 0 } : { gap: space.s3 }} testID="upload-right">
       <Section title="2. Preview">
         {entries.length === 0 ? <Text variant="muted">The preview appears here once files are chosen.</Text> : null}
         {checking ? <Loading label="Reading the files…" /> : null}
@@ -390,6 +395,8 @@ export function UploadScreen() {
         {!ready && preview?.ok && replace?.needsConfirmation && !confirm ? <Text variant="caption">Tick the box above to replace the data.</Text> : null}
         {!preview?.ok ? <Text variant="caption">Storing becomes possible when the preview shows no problems.</Text> : null}
       </Section>
+        </View>
+      </View>
       <FormatGuide />
     </Screen>
   );
