@@ -205,6 +205,8 @@ describe.each<ViewportName>(['phone', 'desktop'])('a statistician on a %s', (vie
       await page.goto(`${server.baseUrl}/studies/${studyId}/batches/${batchId}`);
       await page.getByTestId('stale-data').getByText(/after this batch was made/).waitFor();
       await screenshot(page, 'data-stale-batch', viewport);
+      await page.goto(`${server.baseUrl}/studies/${studyId}/batches`);
+      await page.getByTestId(`batch-${batchId}`).getByText('Stale data').waitFor();
       expect(b.pageErrors).toEqual([]);
     } finally {
       await b.close();
