@@ -207,6 +207,8 @@ describe.each<ViewportName>(['phone', 'desktop'])('a statistician on a %s', (vie
       await screenshot(page, 'data-stale-batch', viewport);
       await page.goto(`${server.baseUrl}/studies/${studyId}/batches`);
       await page.getByTestId(`batch-${batchId}`).getByText('Stale data').waitFor();
+      await page.goto(`${server.baseUrl}/studies/${studyId}/models`);
+      await page.getByTestId('model-table').getByText('Stale data').waitFor();
       expect(b.pageErrors).toEqual([]);
     } finally {
       await b.close();
