@@ -191,7 +191,6 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
 
   const labels: string[] = [];
   const firstLine = new Map<string, number>();
-  const lineOf = firstLine;
   const cells: string[][] = [];
   for (const row of body) {
     if (row.fields.length !== header.fields.length) {
@@ -242,7 +241,7 @@ function parseActors(file: SourceFile, waveCount: number, missingMarker: string,
         const v = row[position];
         if (v === '1') presence![w - 1][i] = 1;
         else if (v !== '0') {
-          problems.add(file.name, `"${PRESENCE_COLUMN}@${w}" of "${row[0]}" is "${v}"; write 1 (present at wave ${w}) or 0 (absent).`, lineOf.get(row[0])!, position + 1);
+          problems.add(file.name, `"${PRESENCE_COLUMN}@${w}" of "${row[0]}" is "${v}"; write 1 (present at wave ${w}) or 0 (absent).`, firstLine.get(row[0])!, position + 1);
         }
       }
     });
