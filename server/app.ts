@@ -7,6 +7,7 @@ import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
 import { modelsRouter } from './models/routes';
+import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
@@ -60,6 +61,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', modelsRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);

@@ -15,7 +15,7 @@ import { loadConfig, type Config } from './config';
 import { openDataSource } from './db/dataSource';
 import { startJobQueue, stopJobQueue } from './jobs';
 import { UserEntity } from './auth/entities';
-import { describeSeed, seedDemo } from './db/seed';
+import { describeSeed, seedDemo } from './demo/seed';
 import { createMailer } from './mail/mailer';
 
 /** Adds the exported web app: static files, and index.html for any other page path outside /api (SPA fallback). */

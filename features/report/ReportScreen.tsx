@@ -8,7 +8,8 @@ import { useState } from 'react';
 import { View } from 'react-native';
 import { getApiBase, messageOf } from '../api/client';
 import { useBatches } from '../batches/queries';
-import { parseId, parseIds, useBoardMutations, useReportStatus } from '../board/queries';
+import { parseId, parseIds } from '../api/params';
+import { useReportMutations, useReportStatus } from './queries';
 import { SummaryStrip } from '../board/SummaryStrip';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
@@ -41,7 +42,7 @@ export function ReportScreen() {
   const batchId = parseId(params.batch) ?? done[0]?.id ?? null;
   const compare = parseIds(params.compare).filter((id) => id !== batchId);
   const status = useReportStatus(studyId ?? 0, batchId);
-  const mutations = useBoardMutations(studyId ?? 0, batchId ?? 0);
+  const mutations = useReportMutations(studyId ?? 0, batchId ?? 0);
   const [note, setNote] = useState('');
   const [confirming, setConfirming] = useState(false);
   const [busy, setBusy] = useState(false);

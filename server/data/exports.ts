@@ -9,7 +9,8 @@ import { ActorEntity, CovariateEntity, WaveEntity } from './entities';
 import { deriveSeed } from '../engine/prng';
 import { seededLayout } from './layout';
 import { formatActorsCsv, formatEdgeListCsv, formatFixedPairsCsv, formatMatrixCsv } from './download';
-import { PRESENCE_COLUMN, TIE_PRESENT } from './parse';
+import { PRESENCE_COLUMN } from './actorsFile';
+import { TIE_PRESENT } from './parse';
 import { studyDataView } from './store';
 
 async function actorLabels(dataSource: DataSource, studyId: number): Promise<string[]> {

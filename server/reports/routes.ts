@@ -8,11 +8,12 @@ import { can } from '../../shared/api';
 import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
-import { guarded, type ReviewRouter } from '../review/routes';
-import { changedSince, loadReviewBatch, signOff, signoffsOf, verdictCounts } from '../review/service';
+import type { ReviewRouter } from '../review/routes';
+import { changedSince, loadReviewBatch, verdictCounts } from '../review/service';
+import { signOff, signoffsOf } from '../review/signoffs';
 import { estimatesCsv, gofCsv } from './csv';
 import { reportPdf } from './pdf';
 import { buildReport } from './reportData';
@@ -38,7 +39,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
   const member = (ability: Parameters<typeof auth.requireStudyRole>[0]) => [auth.requireUser, auth.requireStudyRole(ability)];
   const batchOf = (req: Request) => loadReviewBatch(dataSource, currentStudy(req).study.id, idParam(req, 'batchId', 'Batch'));
 
-  router.get(`${B}/report`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report`, ...member('read'), (req, res) => {
     const batch = batchOf(req);
     const db = syncDb(dataSource);
     const signoffs = signoffsOf(db, batch.row.id);
@@ -53,20 +54,20 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       canSign: currentUser(req).isAdmin || can(role, 'signReport'),
     };
     res.json(body);
-  }));
+  });
 
-  router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), guarded(async (req, res) => {
+  router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), async (req, res) => {
     const signoff = await signOff(dataSource, batchOf(req), currentUser(req), (req.body as { note: string }).note);
     await review.notifier.flush();
     res.status(201).json({ signoff });
-  }));
+  });
 
-  router.get(`${B}/report.json`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report.json`, ...member('read'), (req, res) => {
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
     res.set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, 'json')}"`).json(report);
-  }));
+  });
 
-  router.get(`${B}/report.csv`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report.csv`, ...member('read'), (req, res) => {
     const table = req.query.table === undefined || req.query.table === '' ? 'gof' : String(req.query.table);
     if (table !== 'gof' && table !== 'estimates') throw badRequest('The table is "gof" (envelopes, p-values and verdicts) or "estimates".');
     const report = buildReport(dataSource, gof, batchOf(req), []);
@@ -75,9 +76,9 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       .type('text/csv; charset=utf-8')
       .set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, table === 'gof' ? 'csv' : 'estimates.csv')}"`)
       .send(table === 'gof' ? gofCsv(report) : estimatesCsv(report));
-  }));
+  });
 
-  router.get(`${B}/report.pdf`, ...member('read'), guarded(async (req, res) => {
+  router.get(`${B}/report.pdf`, ...member('read'), async (req, res) => {
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
     const pdf = await reportPdf(report);
     res
@@ -85,7 +86,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       .type('application/pdf')
       .set('Content-Disposition', `${req.query.download === '1' ? 'attachment' : 'inline'}; filename="${fileName(report.study.name, report.batch.id, 'pdf')}"`)
       .send(pdf);
-  }));
+  });
 
   return router;
 }

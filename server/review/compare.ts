@@ -20,9 +20,10 @@ import {
   type VerdictCounts,
 } from '../../shared/review';
 import { getBatch, type LoadedBatch } from '../batches/service';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import type { GofCache } from './gofData';
-import { cardsOf, ReviewError, verdictsOf } from './service';
+import { ApiError } from '../errors';
+import { cardsOf, verdictsOf } from './service';
 
 interface FitInfo {
   id: number;
@@ -73,14 +74,14 @@ export function compareItems(
 ): CompareResponse {
   const total = batchIds.length + fitIds.length;
   if (total < MIN_COMPARE || total > MAX_COMPARE) {
-    throw new ReviewError(400, 'bad_request', `Choose ${MIN_COMPARE} to ${MAX_COMPARE} batches or fits to compare; ${total} ${total === 1 ? 'was' : 'were'} given.`);
+    throw new ApiError(400, 'bad_request', `Choose ${MIN_COMPARE} to ${MAX_COMPARE} batches or fits to compare; ${total} ${total === 1 ? 'was' : 'were'} given.`);
   }
   const notes: string[] = [];
   const items: Item[] = [];
   for (const id of batchIds) {
     const batch = getBatch(dataSource, studyId, id);
-    if (!batch) throw new ReviewError(404, 'not_found', `Batch ${id} not found in this study.`);
-    if (batch.summary.state !== 'done') throw new ReviewError(409, 'batch_not_ready', `Batch ${id} ("${batch.row.label}") is ${batch.summary.state}; only finished batches can be compared.`);
+    if (!batch) throw new ApiError(404, 'not_found', `Batch ${id} not found in this study.`);
+    if (batch.summary.state !== 'done') throw new ApiError(409, 'batch_not_ready', `Batch ${id} ("${batch.row.label}") is ${batch.summary.state}; only finished batches can be compared.`);
     const fit = batch.row.fitId !== null ? fitInfo(dataSource, studyId, batch.row.fitId) : null;
     let params = paramsOfBatch(batch);
     if (fit?.results) {
@@ -109,8 +110,8 @@ export function compareItems(
   }
   for (const id of fitIds) {
     const fit = fitInfo(dataSource, studyId, id);
-    if (!fit) throw new ReviewError(404, 'not_found', `Fit ${id} not found in this study.`);
-    if (!fit.results) throw new ReviewError(409, 'batch_not_ready', `Fit ${id} has no results yet (it is ${fit.state}).`);
+    if (!fit) throw new ApiError(404, 'not_found', `Fit ${id} not found in this study.`);
+    if (!fit.results) throw new ApiError(409, 'batch_not_ready', `Fit ${id} has no results yet (it is ${fit.state}).`);
     items.push({
       batch: null,
       params: paramsOfFit(fit.results),

@@ -2,7 +2,7 @@
  * Review board tables: one Verdict per card (statistic x period of a batch) with its version for
  * optimistic concurrency, every change kept in VerdictHistory, comment threads, review requests,
  * report sign-offs, and each user's notification preferences. Rows are written with the synchronous
- * better-sqlite3 handle (server/jobs/db.ts) so a verdict and its history commit together.
+ * better-sqlite3 handle (server/db/sync.ts) so a verdict and its history commit together.
  */
 import { EntitySchema } from 'typeorm';
 

@@ -1,6 +1,6 @@
 /**
  * The review board in Debian's chromium against the real server with the demo results
- * (server/review/demo.ts: two estimated models, a 100-chain batch each, a review request from the
+ * (server/demo/results.ts: two estimated models, a 100-chain batch each, a review request from the
  * lead to the reviewer):
  * - on a phone (390 x 844) the reviewer finds the request in the inbox, opens the board, records a
  *   verdict with a note and a comment, and sees the summary change; a colleague's save in between
@@ -16,9 +16,9 @@ import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BoardResponse, CompareResponse } from '../../shared/review';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
-import { seedDemoResults, type DemoResults } from '../../server/review/demo';
+import { seedDemoResults, type DemoResults } from '../../server/demo/results';
 import { openBrowser, screenshot, signIn, startServer, type WavefitServer } from './harness';
 
 let server: WavefitServer;

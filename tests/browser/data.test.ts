@@ -13,7 +13,7 @@ import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { StudyDataResponse } from '../../shared/data';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
 import { openBrowser, screenshot, signIn, startServer, type ViewportName, type WavefitServer } from './harness';
 

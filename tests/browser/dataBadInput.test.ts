@@ -8,7 +8,7 @@
  */
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { openBrowser, screenshot, signIn, startServer, type WavefitServer } from './harness';
 
 let server: WavefitServer;

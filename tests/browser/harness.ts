@@ -16,7 +16,7 @@ import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app';
 import { testConfig } from '../../server/config';
 import { openDataSource } from '../../server/db/dataSource';
-import { seedDemo, type SeedResult } from '../../server/db/seed';
+import { seedDemo, type SeedResult } from '../../server/demo/seed';
 import { createOutboxMailer, type OutboxMailer } from '../../server/mail/mailer';
 import { serveWebApp } from '../../server/main';
 
