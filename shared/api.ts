@@ -83,6 +83,7 @@ export type ApiErrorCode =
   | 'batch_not_ready'
   | 'fit_not_running'
   | 'verdict_conflict'
+  | 'already_picked'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */
