@@ -166,6 +166,17 @@ describe('picking', () => {
     // P(X >= 2), X ~ Bin(3, 1/20): 3 p^2 (1 - p) + p^3.
     expect(r3.result.pValue!).toBeCloseTo(3 * (1 / 20) ** 2 * (19 / 20) + (1 / 20) ** 3, 12);
     expect(r3.answer!.picks.map((p) => p.reviewer.id)).toEqual([ids.reviewer, ids.lead, ids.stats]);
+
+    // The fit report carries the result on the card, without the answer.
+    const report = await request(t.app).get(`${B()}/report.json`).set(bearer(reviewer));
+    expect(report.status).toBe(200);
+    const card = (report.body.statistics as { statistic: string; period: number; lineups: { id: number; result: { reviewers: number; correct: number } }[] }[]).find(
+      (c) => c.statistic === 'outdegree_distribution' && c.period === 1,
+    )!;
+    expect(card.lineups.find((l) => l.id === created.id)!.result).toMatchObject({ reviewers: 3, correct: 2 });
+    expect(JSON.stringify(report.body)).not.toMatch(/observedPanel|chainOfPanel/);
+    const pdf = await request(t.app).get(`${B()}/report.pdf`).set(bearer(reviewer));
+    expect(pdf.status).toBe(200);
   });
 
   it('the same seed gives the same lineup; another seed another', async () => {
