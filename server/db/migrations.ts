@@ -17,6 +17,7 @@ import { JobQueue1733100000500 } from '../jobs/migration';
 import { Batches1733100000900 } from '../batches/migration';
 import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
-import { Lineups1733100001300 } from '../lineups/migration';
+import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
+import { Lineups1733100002000 } from '../lineups/migration';
 
-export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000, Review1733100001200, Lineups1733100001300];
+export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000, Review1733100001200, SignoffAcknowledgement1733100001900, Lineups1733100002000];

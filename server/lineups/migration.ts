@@ -1,11 +1,11 @@
 /**
- * Migration: the lineup test (lineups, lineup_picks). Listed in server/db/migrations.ts after the
- * review board.
+ * Migration: the lineup test (lineups, lineup_picks). Listed in server/db/migrations.ts last, after
+ * the sign-off acknowledgement.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 
-export class Lineups1733100001300 implements MigrationInterface {
-  name = 'Lineups1733100001300';
+export class Lineups1733100002000 implements MigrationInterface {
+  name = 'Lineups1733100002000';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(
