@@ -78,15 +78,11 @@ export function scoreTestFromMoments(
   const g = [tested];
   const P = estimated;
   // B = D_g,psi D_psi,psi^-1 (a 1 x |psi| row).
-  const Dpp = pick(d, P, P);
-  const Dgp = pick(d, g, P);
-  const B = matMul(Dgp, inverse(Dpp));
+  const B = P.length ? matMul(pick(d, g, P), inverse(pick(d, P, P))) : [[]];
   const devP = P.map((k) => dev[k]);
-  const corrected = dev[tested] - matVec(B, devP)[0];
-  const Spp = pick(cov, P, P);
-  const Spg = pick(cov, P, g);
-  const BSpg = matMul(B, Spg)[0][0];
-  const BSppBt = matMul(matMul(B, Spp), transpose(B))[0][0];
+  const corrected = dev[tested] - (P.length ? matVec(B, devP)[0] : 0);
+  const BSpg = P.length ? matMul(B, pick(cov, P, g))[0][0] : 0;
+  const BSppBt = P.length ? matMul(matMul(B, pick(cov, P, P)), transpose(B))[0][0] : 0;
   const variance = cov[tested][tested] - 2 * BSpg + BSppBt;
   const statistic = variance > 0 ? (corrected * corrected) / variance : 0;
   // One Newton step on the moment equations of psi and this candidate.
@@ -105,7 +101,8 @@ export interface CandidateScoreTests {
 /**
  * Score-type tests of each candidate at once: `input` holds the model's effects followed by the
  * candidates (params: the model's fitted values, then 0 for each candidate) and rates at their fitted
- * values; `candidates` says how many trailing effects are candidates. Runs `runs` simulations at those
+ * values; `candidates` says how many trailing effects are candidates. The model's parameters marked
+ * `estimate: true` are the estimated ones the test corrects for; fixed ones are left out of it. Runs `runs` simulations at those
  * values with finite-difference derivatives (cost: runs x (parameters + 1) simulated panels).
  */
 export function candidateScoreTests(input: SaomProblemInput, candidates: number, runs: number): CandidateScoreTests {
@@ -119,7 +116,10 @@ export function candidateScoreTests(input: SaomProblemInput, candidates: number,
   const sample = sampleMoments(built.problem, theta, runs, { phase: 3 });
   const p = theta.length;
   const first = p - candidates;
-  const estimated = Array.from({ length: first }, (_, k) => k);
+  const estimated = built.parameters
+    .map((q, k) => ({ k, estimated: q.kind === 'rate' ? input.rates[q.index].estimate : input.params[q.index].estimate }))
+    .filter((x) => x.k < first && x.estimated)
+    .map((x) => x.k);
   const results: ScoreTestResult[] = [];
   for (let c = first; c < p; c++) results.push(scoreTestFromMoments(sample, built.target, estimated, c));
   return { results, runs, keys: built.parameters.map((q) => q.key) };
