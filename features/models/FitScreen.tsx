@@ -19,6 +19,7 @@ import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 import { CorrelationGrid } from './CorrelationGrid';
+import { ScoreTestsSection } from './ScoreTestsSection';
 import { convergenceWord, duration, fitStateWords, fixed, progressWords, tauHigh, tHigh } from './format';
 import { parseId } from '../api/params';
 import { useFit, useModel, useModelMutations } from './queries';
@@ -246,6 +247,7 @@ export function FitScreen() {
                   </Card>
                 </Section>
               ) : null}
+              {fit.state === 'done' ? <ScoreTestsSection studyId={studyId} modelId={modelId} fitId={fitId} mayEdit={can(study.data?.study.myRole, 'editModels')} /> : null}
             </>
           ) : null}
 
