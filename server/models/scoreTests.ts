@@ -115,7 +115,9 @@ export async function scoreTestsOf(dataSource: DataSource, model: ModelRow, row:
   });
   candidates.sort((a, b) => a.pValue - b.pValue);
   const cautions: string[] = [];
-  if (!results.converged) cautions.push('The fit did not converge, so the tests are taken at values that are not the estimates; read them as rough hints and continue the fit first.');
+  if (row.mode === 'fixed') {
+    cautions.push('These values were entered by hand, not estimated: the tests take them as given and do not allow for estimating the other parameters, so they find more to add than they would after a fit.');
+  } else if (!results.converged) cautions.push('The fit did not converge, so the tests are taken at values that are not the estimates; read them as rough hints and continue the fit first.');
   cautions.push(
     `Each test uses ${runs} simulations at the estimates; p-values near 0.05 can move with another seed. Each candidate is tested on its own: two small p-values do not mean both effects are needed together.`,
   );
