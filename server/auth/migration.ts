@@ -46,8 +46,8 @@ export class Accounts1733100000001 implements MigrationInterface {
  * The column is added with ALTER TABLE rather than by rebuilding "users": dropping that table with
  * foreign keys on would delete every membership and verdict author through the cascades.
  */
-export class Sessions1733100002000 implements MigrationInterface {
-  name = 'Sessions1733100002000';
+export class Sessions1733100002200 implements MigrationInterface {
+  name = 'Sessions1733100002200';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(`ALTER TABLE "users" ADD COLUMN "sessionEpoch" integer NOT NULL DEFAULT (0)`);

@@ -32,8 +32,8 @@ export class Batches1733100000900 implements MigrationInterface {
  * Migration: batch_gof, the goodness of fit of each finished batch computed once and kept
  * (server/batches/gofStore.ts). Listed in server/db/migrations.ts after the sessions.
  */
-export class BatchGof1733100002100 implements MigrationInterface {
-  name = 'BatchGof1733100002100';
+export class BatchGof1733100002300 implements MigrationInterface {
+  name = 'BatchGof1733100002300';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(
