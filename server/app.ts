@@ -6,6 +6,7 @@ import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
+import { exploreRouter } from './explore/routes';
 import { modelsRouter } from './models/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
@@ -58,6 +59,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
+  api.use('/studies', exploreRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
   api.use(reportsRouter(routeDeps, review));
