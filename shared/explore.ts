@@ -72,6 +72,8 @@ export interface ChoiceOptionDto {
   alter: number | null;
   /** 1 when the tie exists at the start (choosing it dissolves it). */
   tie: 0 | 1;
+  /** 1 when the alter has a tie to the actor (choosing it would reciprocate). */
+  tieBack: 0 | 1;
   probability: number;
   utility: number;
   /** beta_k * delta_ijk per effect, in `effects` order. */
@@ -85,6 +87,8 @@ export interface ChoiceResponse {
   actors: string[];
   effects: ExploreEffect[];
   rate: number;
+  /** Periods the fit has a rate for. */
+  coveredPeriods: number[];
   /** Every option, most likely first. */
   options: ChoiceOptionDto[];
   /** Whether the fit converged (a caption warns when it did not). */
@@ -104,6 +108,7 @@ export interface OverviewResponse {
   probabilities: number[][];
   /** Ties at the start wave, [sender, receiver]. */
   startTies: Array<[number, number]>;
+  coveredPeriods: number[];
   converged: boolean | null;
 }
 

@@ -75,7 +75,7 @@ async function fitSetting(dataSource: DataSource, studyId: number, fitId: number
   if (!model) throw new ExploreError('Fit not found.', 404);
   if (period > periods) throw new ExploreError(`The study has ${plural(periods, 'period')} (${data.waves.length} waves); there is no period ${period}.`);
   const rate = model.rates[period - 1];
-  const covered = model.rates.map((r, k) => (r == null ? 0 : k + 1)).filter((p) => p > 0);
+  const covered = coveredOf(model);
   if (rate == null) throw new ExploreError(`Fit ${fitId} does not cover period ${period}; it covers period${covered.length === 1 ? '' : 's'} ${covered.join(', ')}.`);
   const covs = periodCovariates(data)[period - 1];
   let effects;
@@ -95,6 +95,8 @@ async function fitSetting(dataSource: DataSource, studyId: number, fitId: number
   return { fitId, period, data, model, rate, state, effects, params: model.effects.map((e) => e.value), converged };
 }
 
+const coveredOf = (model: BatchModel) => model.rates.map((r, k) => (r == null ? 0 : k + 1)).filter((p) => p > 0);
+
 const effectsOf = (s: FitSetting): ExploreEffect[] => s.model.effects.map((e, k) => ({ key: s.effects[k].key, label: e.label, value: e.value }));
 
 export async function choiceOf(dataSource: DataSource, studyId: number, fitId: number, period: number, actor: number): Promise<ChoiceResponse> {
@@ -110,9 +112,11 @@ export async function choiceOf(dataSource: DataSource, studyId: number, fitId: n
     actors: s.data.actors,
     effects: effectsOf(s),
     rate: s.rate,
+    coveredPeriods: coveredOf(s.model),
     options: sorted.map((o) => ({
       alter: o.alter < 0 ? null : o.alter,
       tie: o.tie ? 1 : 0,
+      tieBack: o.alter >= 0 && s.state.adj[o.alter * n + actor] ? 1 : 0,
       probability: o.probability,
       utility: o.utility,
       contributions: o.contributions,
@@ -154,6 +158,7 @@ export async function overviewOf(dataSource: DataSource, studyId: number, fitId:
     ],
     probabilities: Array.from({ length: n }, (_, i) => Array.from(matrix.subarray(i * n, (i + 1) * n))),
     startTies: edgesOf(n, s.state.adj),
+    coveredPeriods: coveredOf(s.model),
     converged: s.converged,
   };
 }
