@@ -5,8 +5,9 @@
 import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
+import { exploreSections } from './explore';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();
