@@ -11,16 +11,16 @@ import { modelsRouter } from './models/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
-import { authRouter } from './routes/auth';
-import { dataRouter } from './routes/data';
-import type { AppDeps } from './routes/deps';
-import { devRouter } from './routes/dev';
-import { healthRouter } from './routes/health';
-import { invitationsRouter } from './routes/invitations';
-import { studiesRouter } from './routes/studies';
-import { teamRouter } from './routes/team';
+import { authRouter } from './auth/routes';
+import { dataRouter } from './data/routes';
+import type { AppDeps } from './deps';
+import { devRouter } from './dev/routes';
+import { healthRouter } from './health/routes';
+import { invitationsRouter } from './invitations/routes';
+import { studiesRouter } from './studies/routes';
+import { teamRouter } from './team/routes';
 
-export type { AppDeps } from './routes/deps';
+export type { AppDeps } from './deps';
 
 /** Paths (below /api) whose bodies may be large: study data uploads. */
 const UPLOAD_PATH = /^\/studies\/[^/]+\/data\/?$/;

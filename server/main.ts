@@ -14,7 +14,7 @@ import { createApp } from './app';
 import { loadConfig, type Config } from './config';
 import { openDataSource } from './db/dataSource';
 import { startJobQueue, stopJobQueue } from './jobs';
-import { UserEntity } from './db/entities/User';
+import { UserEntity } from './auth/entities';
 import { describeSeed, seedDemo } from './db/seed';
 import { createMailer } from './mail/mailer';
 

@@ -1,8 +1,8 @@
 /** What the auth middleware attaches to a request, and typed getters for the routes. */
 import type { Request } from 'express';
 import type { StudyRole } from '../../shared/api';
-import type { Study } from '../db/entities/Study';
-import type { User } from '../db/entities/User';
+import type { Study } from '../studies/entities';
+import type { User } from './entities';
 
 export interface StudyAccess {
   study: Study;

@@ -9,9 +9,9 @@ import type { CookieOptions, Request, RequestHandler, Response } from 'express';
 import type { DataSource } from 'typeorm';
 import { ROLE_ABILITIES, can, type Ability } from '../../shared/api';
 import type { Config } from '../config';
-import { MembershipEntity } from '../db/entities/Membership';
-import { StudyEntity } from '../db/entities/Study';
-import { UserEntity, type User } from '../db/entities/User';
+import { MembershipEntity } from '../team/entities';
+import { StudyEntity } from '../studies/entities';
+import { UserEntity, type User } from './entities';
 import { ApiError, forbidden, idParam, notFound } from '../errors';
 import { SESSION_COOKIE, signSession, verifySession, type SessionToken } from './tokens';
 

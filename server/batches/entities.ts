@@ -4,8 +4,8 @@
  * per-tie frequency counts per period (one Int32Array blob, summed over chunks).
  */
 import { EntitySchema } from 'typeorm';
-import type { Study } from '../db/entities/Study';
-import type { User } from '../db/entities/User';
+import type { Study } from '../studies/entities';
+import type { User } from '../auth/entities';
 import type { Job } from '../jobs/entities';
 
 export interface Batch {

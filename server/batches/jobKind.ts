@@ -12,7 +12,7 @@ import { registerJobKind, type SyncDb } from '../jobs/registry';
 import { recordBatchEnded } from '../notify/notifier';
 import type { BatchChunk, BatchChunkResult, BatchContext } from './context';
 import { auxOptionsOf, buildLayout, layoutOffsets, type ResolvedMaxima } from './layout';
-import { periodCovariates, periodNetworks } from './periods';
+import { periodCovariates, periodNetworks } from '../data/periods';
 
 export const BATCH_JOB_KIND = 'batch';
 

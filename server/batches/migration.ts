@@ -1,6 +1,6 @@
 /**
  * Migration: simulation batches (batches, batch_results, batch_tie_counts). Listed in
- * server/db/migrations/index.ts, after the job queue's tables.
+ * server/db/migrations.ts, after the job queue's tables.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

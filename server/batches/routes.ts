@@ -7,7 +7,7 @@ import { createBatchBodySchema, type ParsedCreateBatchBody } from '../../shared/
 import type { ApiErrorCode } from '../../shared/api';
 import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import './jobKind';
 import {
   BatchInputError,

@@ -32,7 +32,7 @@ import { createJobRow, inSyncTransaction, jobQueueFor, parseSqlDate, sqlNow, syn
 import { BATCH_JOB_KIND, float64FromBlob, int32FromBlob, type BatchJobPayload } from './jobKind';
 import { auxOptionsOf, buildLayout, layoutOffsets, resolveMaxima, type ResolvedMaxima } from './layout';
 import { fitModel, FitNotUsable } from './fitModel';
-import { periodCovariates, periodNetworks } from './periods';
+import { periodCovariates, periodNetworks } from '../data/periods';
 
 /** A refusal with a plain message; the routes turn it into a 400 (or the given status). */
 export class BatchInputError extends Error {

@@ -6,11 +6,9 @@
  */
 import type { DataSource, EntityManager } from 'typeorm';
 import type { StudyDataResponse, WaveTiesResponse } from '../../shared/data';
-import { ActorEntity } from '../db/entities/Actor';
-import { CovariateEntity, type Covariate } from '../db/entities/Covariate';
-import { StudyEntity } from '../db/entities/Study';
-import { WaveEntity, type Wave } from '../db/entities/Wave';
 import { conflict } from '../errors';
+import { StudyEntity } from '../studies/entities';
+import { ActorEntity, CovariateEntity, WaveEntity, type Covariate, type Wave } from './entities';
 import { TIE_MISSING, TIE_PRESENT, type ParsedStudyData } from './parse';
 import { DATA_REPLACE_GUARDS, type DataReplaceGuard } from './replaceGuards';
 import { compareWaves, summarizeCovariate, summarizeWave } from './summaries';
@@ -169,16 +167,4 @@ export async function waveTies(dataSource: DataSource, studyId: number, index: n
     }
   }
   return { index: wave.index, label: wave.label, actors: actors.map((a) => a.label), ties, missing };
-}
-
-/** Rows of `table` per study, for the given study ids (0 where there are none). */
-export async function countPerStudy(dataSource: DataSource, table: string, studyIds: number[]): Promise<Map<number, number>> {
-  const counts = new Map<number, number>(studyIds.map((id) => [id, 0]));
-  if (studyIds.length === 0) return counts;
-  const rows: Array<{ studyId: number; n: number }> = await dataSource.query(
-    `SELECT "studyId", COUNT(*) AS n FROM "${table}" WHERE "studyId" IN (${studyIds.map(() => '?').join(',')}) GROUP BY "studyId"`,
-    studyIds,
-  );
-  for (const row of rows) counts.set(row.studyId, Number(row.n));
-  return counts;
 }

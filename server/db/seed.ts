@@ -16,10 +16,10 @@ import { stopJobQueue } from '../jobs';
 import { seedDemoResults, type DemoResults } from '../review/demo';
 import { openDataSource } from './dataSource';
 import { demoUpload } from './demo-data';
-import { MembershipEntity } from './entities/Membership';
-import { StudyEntity } from './entities/Study';
-import { UserEntity } from './entities/User';
-import { WaveEntity } from './entities/Wave';
+import { MembershipEntity } from '../team/entities';
+import { StudyEntity } from '../studies/entities';
+import { UserEntity } from '../auth/entities';
+import { WaveEntity } from '../data/entities';
 
 export const DEMO_PASSWORD = 'wavefit-demo-1';
 export const DEMO_STUDY_NAME = 'Harbourside rescue station — advice ties';

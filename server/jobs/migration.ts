@@ -1,5 +1,5 @@
 /**
- * Migration: the job queue's tables (jobs, job_chunks). Listed in server/db/migrations/index.ts.
+ * Migration: the job queue's tables (jobs, job_chunks). Listed in server/db/migrations.ts.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

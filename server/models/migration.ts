@@ -1,6 +1,6 @@
 /**
  * Migration: model specifications and fits (model_specs, fits). Listed in
- * server/db/migrations/index.ts after the batches.
+ * server/db/migrations.ts after the batches.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

@@ -5,7 +5,7 @@
  */
 import { effectInfo, type EffectId } from '../../shared/effects';
 import type { EffectSpecInput, ModelNote, RateSpec } from '../../shared/models';
-import { periodCovariates, periodNetworks } from '../batches/periods';
+import { periodCovariates, periodNetworks } from '../data/periods';
 import type { LoadedStudyData } from '../data/store';
 import { buildEffects, type CovariateCentring, type CovariateValues, type EffectSpec } from '../engine/effects';
 import { checkModelData, type ParameterPlan, type PeriodInput } from '../engine/estimate';

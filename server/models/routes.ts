@@ -13,7 +13,7 @@ import {
 } from '../../shared/models';
 import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import './jobKind';
 import {
   ModelInputError,

@@ -9,7 +9,7 @@ import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
 import { syncDb } from '../jobs/db';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
 import { guarded, type ReviewRouter } from '../review/routes';
 import { changedSince, loadReviewBatch, signOff, signoffsOf, verdictCounts } from '../review/service';

@@ -12,7 +12,7 @@ import Graph from 'graphology';
 import forceAtlas2 from 'graphology-layout-forceatlas2';
 import type { DataSource } from 'typeorm';
 import type { ConsensusLayoutDto } from '../../shared/review';
-import { periodNetworks } from '../batches/periods';
+import { periodNetworks } from '../data/periods';
 import type { LoadedBatch } from '../batches/service';
 import { loadStudyData } from '../data/store';
 import { deriveSeed, streamFor } from '../engine/prng';

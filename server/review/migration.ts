@@ -1,7 +1,7 @@
 /**
  * Migration: the review board (verdicts, verdict_history, review_comments, review_requests,
  * report_signoffs) and notifications (notification_preferences, notification_events). Listed in
- * server/db/migrations/index.ts after the models.
+ * server/db/migrations.ts after the models.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

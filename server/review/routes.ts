@@ -20,7 +20,7 @@ import { ApiError, badRequest, forbidden, idParam, notFound, validate } from '..
 import { inSyncTransaction, syncDb } from '../jobs/db';
 import { createNotifier, registerNotifier, type Notifier } from '../notify/notifier';
 import { preferencesOf, updatePreferences } from '../notify/preferences';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import { compareItems } from './compare';
 import { GofCache } from './gofData';
 import { LayoutCache } from './layout';

@@ -7,7 +7,7 @@
 import { createHash } from 'node:crypto';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { InvitationEntity } from '../../server/db/entities/Invitation';
+import { InvitationEntity } from '../../server/invitations/entities';
 import { ADMIN, LEAD, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 
 let t: TestApp;

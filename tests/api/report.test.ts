@@ -15,7 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BatchDetail, GofResponse } from '../../shared/batches';
 import type { ReportJson, ReportStatus } from '../../shared/review';
 import { hashPassword } from '../../server/auth/passwords';
-import { UserEntity } from '../../server/db/entities/User';
+import { UserEntity } from '../../server/auth/entities';
 import { stopJobQueue } from '../../server/jobs';
 import { LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 

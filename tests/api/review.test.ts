@@ -18,9 +18,9 @@ import type { StudyDataResponse, WaveTiesResponse } from '../../shared/data';
 import { classifyTies, countKinds } from '../../features/consensus/classify';
 import type { BoardResponse, CompareResponse, ConsensusLayoutDto, InboxResponse, ReviewRequestDto, VerdictChange, VerdictConflictDetails, VerdictDto } from '../../shared/review';
 import { hashPassword } from '../../server/auth/passwords';
-import { MembershipEntity } from '../../server/db/entities/Membership';
-import { StudyEntity } from '../../server/db/entities/Study';
-import { UserEntity } from '../../server/db/entities/User';
+import { MembershipEntity } from '../../server/team/entities';
+import { StudyEntity } from '../../server/studies/entities';
+import { UserEntity } from '../../server/auth/entities';
 import { stopJobQueue } from '../../server/jobs';
 import { ADMIN, LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 

@@ -8,9 +8,9 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { StudyRole } from '../../shared/api';
 import { hashPassword } from '../../server/auth/passwords';
-import { MembershipEntity } from '../../server/db/entities/Membership';
-import { StudyEntity } from '../../server/db/entities/Study';
-import { UserEntity } from '../../server/db/entities/User';
+import { MembershipEntity } from '../../server/team/entities';
+import { StudyEntity } from '../../server/studies/entities';
+import { UserEntity } from '../../server/auth/entities';
 import { ADMIN, LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 
 type Method = 'get' | 'post' | 'patch' | 'delete';

@@ -1,7 +1,7 @@
 /** Team management: roles change and members leave, but a study always keeps a lead. */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { UserEntity } from '../../server/db/entities/User';
+import { UserEntity } from '../../server/auth/entities';
 import { LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 
 let t: TestApp;

@@ -1,6 +1,10 @@
 /**
  * Migration 1: accounts and studies — users, studies, memberships (role per user and study) and
  * invitations (only the token's hash is kept).
+ *
+ * The first migration creates the tables of four folders at once (auth, studies, team, invitations);
+ * it stays whole, under its recorded name, so that existing databases upgrade. Listed in
+ * server/db/migrations.ts.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

@@ -1,6 +1,6 @@
 /**
  * Migration 2: study data — actors, waves (adjacency as n*n bytes: 0, 1, 2 = missing) and actor
- * covariates (values as JSON). All belong to a study and go with it.
+ * covariates (values as JSON). All belong to a study and go with it. Listed in server/db/migrations.ts.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 

@@ -13,7 +13,7 @@
  *   mean similarity are taken over the columns of waves 1 .. M-1, so every period is centred alike.
  */
 import { centreCovariate, covariateRange, similarityMean, type CovariateCentring, type CovariateValues } from '../engine/effects';
-import type { LoadedStudyData } from '../data/store';
+import type { LoadedStudyData } from './store';
 
 /** Codes of LoadedStudyData.waves. */
 const TIE = 1;

@@ -10,13 +10,13 @@ import {
   type LoginBody,
   type SessionResponse,
 } from '../../shared/api';
-import { currentUser } from '../auth/context';
-import { createLoginLimiter } from '../auth/loginLimiter';
-import { hashPassword, makeDecoyHash, verifyPassword } from '../auth/passwords';
-import { UserEntity, type User } from '../db/entities/User';
+import { currentUser } from './context';
+import { createLoginLimiter } from './loginLimiter';
+import { hashPassword, makeDecoyHash, verifyPassword } from './passwords';
+import { UserEntity, type User } from './entities';
 import { ApiError, badRequest, validate } from '../errors';
-import type { RouteDeps } from './deps';
-import { userInfo } from './views';
+import type { RouteDeps } from '../deps';
+import { userInfo } from './service';
 
 export function sessionResponse(user: User, token: string, expiresAt: Date): SessionResponse {
   return { user: userInfo(user), token, expiresAt: expiresAt.toISOString() };

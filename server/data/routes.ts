@@ -6,10 +6,10 @@
 import { Router } from 'express';
 import { dataUploadBodySchema, type DataUploadResponse, type ParsedDataUploadBody } from '../../shared/data';
 import { currentStudy } from '../auth/context';
-import { parseUpload } from '../data/parse';
-import { replaceStudyData, studyDataView, waveTies } from '../data/store';
+import { parseUpload } from './parse';
+import { replaceStudyData, studyDataView, waveTies } from './store';
 import { ApiError, idParam, notFound, validate } from '../errors';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function dataRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;

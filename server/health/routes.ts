@@ -1,6 +1,6 @@
 /** /api/health: is the server up, and which version. Checks the database with a trivial query. */
 import { Router } from 'express';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function healthRouter(deps: RouteDeps): Router {
   const router = Router();

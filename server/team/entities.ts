@@ -1,8 +1,8 @@
 /** Membership: a user's role in one study (lead, statistician or reviewer); one per user and study. */
 import { EntitySchema } from 'typeorm';
-import type { StudyRole } from '../../../shared/api';
-import type { Study } from './Study';
-import type { User } from './User';
+import type { StudyRole } from '../../shared/api';
+import type { Study } from '../studies/entities';
+import type { User } from '../auth/entities';
 
 export interface Membership {
   id: number;

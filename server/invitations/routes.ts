@@ -5,14 +5,14 @@
  */
 import { Router, type Request } from 'express';
 import { acceptInvitationBodySchema, type AcceptInvitationBody, type InvitationPreview } from '../../shared/api';
-import { hashInvitationToken } from '../auth/invitationTokens';
+import { hashInvitationToken } from './tokens';
 import { hashPassword, verifyPassword } from '../auth/passwords';
-import { InvitationEntity, type Invitation } from '../db/entities/Invitation';
-import { MembershipEntity } from '../db/entities/Membership';
-import { UserEntity, type User } from '../db/entities/User';
+import { InvitationEntity, type Invitation } from './entities';
+import { MembershipEntity } from '../team/entities';
+import { UserEntity, type User } from '../auth/entities';
 import { ApiError, notFound, validate } from '../errors';
-import { sessionResponse } from './auth';
-import type { RouteDeps } from './deps';
+import { sessionResponse } from '../auth/routes';
+import type { RouteDeps } from '../deps';
 
 export function invitationsRouter(deps: RouteDeps): Router {
   const { dataSource, config, auth } = deps;

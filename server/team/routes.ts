@@ -13,14 +13,14 @@ import {
   type TeamResponse,
 } from '../../shared/api';
 import { currentStudy, currentUser } from '../auth/context';
-import { newInvitationToken } from '../auth/invitationTokens';
-import { InvitationEntity } from '../db/entities/Invitation';
-import { MembershipEntity, type Membership } from '../db/entities/Membership';
-import { UserEntity, type User } from '../db/entities/User';
+import { newInvitationToken } from '../invitations/tokens';
+import { InvitationEntity } from '../invitations/entities';
+import { MembershipEntity, type Membership } from './entities';
+import { UserEntity, type User } from '../auth/entities';
 import { conflict, idParam, notFound, validate } from '../errors';
 import { invitationMail } from '../mail/templates';
-import type { RouteDeps } from './deps';
-import { invitationView, memberView } from './views';
+import type { RouteDeps } from '../deps';
+import { invitationView, memberView } from './service';
 
 const DAY_MS = 24 * 60 * 60 * 1000;
 

@@ -3,9 +3,9 @@
  * stored; the token itself travels once, in the accept link of the e-mail.
  */
 import { EntitySchema } from 'typeorm';
-import type { StudyRole } from '../../../shared/api';
-import type { Study } from './Study';
-import type { User } from './User';
+import type { StudyRole } from '../../shared/api';
+import type { Study } from '../studies/entities';
+import type { User } from '../auth/entities';
 
 export interface Invitation {
   id: number;

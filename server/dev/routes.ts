@@ -1,7 +1,7 @@
 /** /api/dev: development helpers, never mounted when NODE_ENV=production. */
 import { Router } from 'express';
 import { isOutbox } from '../mail/mailer';
-import type { RouteDeps } from './deps';
+import type { RouteDeps } from '../deps';
 
 export function devRouter(deps: RouteDeps): Router {
   const router = Router();

@@ -3,11 +3,11 @@ import { Router } from 'express';
 import { In } from 'typeorm';
 import { createStudyBodySchema, updateStudyBodySchema, type StudyRole } from '../../shared/api';
 import { currentStudy, currentUser } from '../auth/context';
-import { MembershipEntity } from '../db/entities/Membership';
-import { StudyEntity, type Study } from '../db/entities/Study';
+import { MembershipEntity } from '../team/entities';
+import { StudyEntity, type Study } from './entities';
 import { validate } from '../errors';
-import type { RouteDeps } from './deps';
-import { studySummaries } from './views';
+import type { RouteDeps } from '../deps';
+import { studySummaries } from './service';
 
 export function studiesRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
