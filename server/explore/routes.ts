@@ -9,7 +9,7 @@ import { choiceQuerySchema, overviewQuerySchema, replayQuerySchema, timelinesQue
 import { currentStudy } from '../auth/context';
 import { getBatch, type LoadedBatch } from '../batches/service';
 import { ApiError, badRequest, fieldErrors, idParam, notFound } from '../errors';
-import type { RouteDeps } from '../routes/deps';
+import type { RouteDeps } from '../deps';
 import '../batches/jobKind';
 import { actorsOf, choiceOf, ContextCache, ExploreError, overviewOf, replayChain, timelinesOf } from './service';
 

@@ -14,7 +14,7 @@ import { DEFAULT_TIMELINE_POINTS } from '../../shared/explore';
 import type { BatchContext } from '../batches/context';
 import { fitModel, FitNotUsable } from '../batches/fitModel';
 import { float64FromBlob, int32FromBlob, loadBatchContext } from '../batches/jobKind';
-import { periodCovariates, periodNetworks } from '../batches/periods';
+import { periodCovariates, periodNetworks } from '../data/periods';
 import type { LoadedBatch } from '../batches/service';
 import { simulateChain } from '../batches/worker';
 import { loadStudyData, type LoadedStudyData } from '../data/store';

@@ -16,7 +16,7 @@ import type { WaveTiesResponse } from '../../shared/data';
 import type { ChoiceResponse, OverviewResponse, ReplayResponse, TimelinesResponse } from '../../shared/explore';
 import { hashPassword } from '../../server/auth/passwords';
 import { loadStudyData } from '../../server/data/store';
-import { UserEntity } from '../../server/db/entities/User';
+import { UserEntity } from '../../server/auth/entities';
 import { NetworkState } from '../../server/engine/state';
 import { auxStatistic } from '../../server/engine/statistics';
 import { stopJobQueue } from '../../server/jobs';
