@@ -8,10 +8,10 @@ import type { ZodType } from 'zod';
 import { choiceQuerySchema, overviewQuerySchema, replayQuerySchema, timelinesQuerySchema } from '../../shared/explore';
 import { currentStudy } from '../auth/context';
 import { getBatch, type LoadedBatch } from '../batches/service';
-import { ApiError, badRequest, fieldErrors, idParam, notFound } from '../errors';
+import { badRequest, conflict, fieldErrors, idParam, notFound } from '../errors';
 import type { RouteDeps } from '../deps';
 import '../batches/jobKind';
-import { actorsOf, choiceOf, ContextCache, ExploreError, overviewOf, replayChain, timelinesOf } from './service';
+import { actorsOf, choiceOf, ContextCache, overviewOf, replayChain, timelinesOf } from './service';
 
 function query<T>(schema: ZodType<T>, req: Request): T {
   const result = schema.safeParse(req.query);
@@ -21,14 +21,6 @@ function query<T>(schema: ZodType<T>, req: Request): T {
     throw badRequest(`The request was not accepted: ${words.join('; ')}`, details, 'validation_failed');
   }
   return result.data;
-}
-
-function toApiError(error: unknown): unknown {
-  if (error instanceof ExploreError) {
-    const code = error.status === 404 ? 'not_found' : error.status === 409 ? 'batch_not_ready' : 'bad_request';
-    return new ApiError(error.status, code, error.message);
-  }
-  return error;
 }
 
 export function exploreRouter(deps: RouteDeps): Router {
@@ -48,48 +40,32 @@ export function exploreRouter(deps: RouteDeps): Router {
     const { study } = currentStudy(req);
     const fitId = idParam(req, 'fitId', 'Fit');
     const q = query(choiceQuerySchema, req);
-    try {
-      res.json(await choiceOf(dataSource, study.id, fitId, q.period, q.actor));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    res.json(await choiceOf(dataSource, study.id, fitId, q.period, q.actor));
   });
 
   router.get('/:studyId/explore/fits/:fitId/overview', ...member, async (req, res) => {
     const { study } = currentStudy(req);
     const fitId = idParam(req, 'fitId', 'Fit');
     const q = query(overviewQuerySchema, req);
-    try {
-      res.json(await overviewOf(dataSource, study.id, fitId, q.period, q.order));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    res.json(await overviewOf(dataSource, study.id, fitId, q.period, q.order));
   });
 
   router.get('/:studyId/explore/batches/:batchId/replay', ...member, async (req, res) => {
     const batch = loadBatch(req);
     const q = query(replayQuerySchema, req);
-    try {
-      if (batch.summary.state !== 'done') throw new ExploreError(`This batch is ${batch.summary.state}; chains can be replayed once it is done.`, 409);
-      const context = await contexts.get(dataSource, batch.row.id);
-      const actors = await actorsOf(dataSource, batch.row.studyId, context.n);
-      res.json(replayChain(dataSource, batch, context, actors, q.period, q.chain));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    if (batch.summary.state !== 'done') throw conflict('batch_not_ready', `This batch is ${batch.summary.state}; chains can be replayed once it is done.`);
+    const context = await contexts.get(dataSource, batch.row.id);
+    const actors = await actorsOf(dataSource, batch.row.studyId, context.n);
+    res.json(replayChain(dataSource, batch, context, actors, q.period, q.chain));
   });
 
   router.get('/:studyId/explore/batches/:batchId/timelines', ...member, async (req, res) => {
     const batch = loadBatch(req);
     const q = query(timelinesQuerySchema, req);
-    try {
-      if (batch.summary.state !== 'done') throw new ExploreError(`This batch is ${batch.summary.state}; its chains can be re-simulated once it is done.`, 409);
-      const context = await contexts.get(dataSource, batch.row.id);
-      const actors = await actorsOf(dataSource, batch.row.studyId, context.n);
-      res.json(timelinesOf(dataSource, batch, context, actors, q));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    if (batch.summary.state !== 'done') throw conflict('batch_not_ready', `This batch is ${batch.summary.state}; its chains can be re-simulated once it is done.`);
+    const context = await contexts.get(dataSource, batch.row.id);
+    const actors = await actorsOf(dataSource, batch.row.studyId, context.n);
+    res.json(timelinesOf(dataSource, batch, context, actors, q));
   });
 
   return router;

@@ -22,17 +22,15 @@ import { buildEffects } from '../engine/effects';
 import { choiceMatrix, clusterOrder, evenGrid, explainChoice, MinistepLog, TieTimelines } from '../engine/explore';
 import { deriveSeed } from '../engine/prng';
 import { NetworkState } from '../engine/state';
+import { ApiError, badRequest, conflict, notFound } from '../errors';
 import { syncDb } from '../jobs/db';
 import { seededLayout } from '../review/layout';
 
-/** A refusal with a plain message; the routes turn it into an ApiError with this status. */
-export class ExploreError extends Error {
-  constructor(
-    message: string,
-    readonly status: 400 | 404 | 409 = 400,
-  ) {
-    super(message);
-  }
+/** Refusals are ApiErrors with a plain message (400 bad input, 404 not here, 409 not ready); the error handler answers them. */
+function refuse(message: string, status: 400 | 404 | 409 = 400): ApiError {
+  if (status === 404) return notFound(message);
+  if (status === 409) return conflict('batch_not_ready', message);
+  return badRequest(message);
 }
 
 const plural = (k: number, word: string) => `${k} ${word}${k === 1 ? '' : 's'}`;
@@ -62,21 +60,21 @@ async function fitSetting(dataSource: DataSource, studyId: number, fitId: number
   try {
     data = await loadStudyData(dataSource, studyId);
   } catch {
-    throw new ExploreError('This study has no network data yet.', 409);
+    throw refuse('This study has no network data yet.', 409);
   }
   const periods = data.waves.length - 1;
   let model: BatchModel | null;
   try {
     model = fitModel(dataSource, studyId, fitId, periods);
   } catch (error) {
-    if (error instanceof FitNotUsable) throw new ExploreError(error.message, 409);
+    if (error instanceof FitNotUsable) throw refuse(error.message, 409);
     throw error;
   }
-  if (!model) throw new ExploreError('Fit not found.', 404);
-  if (period > periods) throw new ExploreError(`The study has ${plural(periods, 'period')} (${data.waves.length} waves); there is no period ${period}.`);
+  if (!model) throw refuse('Fit not found.', 404);
+  if (period > periods) throw refuse(`The study has ${plural(periods, 'period')} (${data.waves.length} waves); there is no period ${period}.`);
   const rate = model.rates[period - 1];
   const covered = coveredOf(model);
-  if (rate == null) throw new ExploreError(`Fit ${fitId} does not cover period ${period}; it covers period${covered.length === 1 ? '' : 's'} ${covered.join(', ')}.`);
+  if (rate == null) throw refuse(`Fit ${fitId} does not cover period ${period}; it covers period${covered.length === 1 ? '' : 's'} ${covered.join(', ')}.`);
   const covs = periodCovariates(data)[period - 1];
   let effects;
   try {
@@ -86,7 +84,7 @@ async function fitSetting(dataSource: DataSource, studyId: number, fitId: number
       covs.centring,
     );
   } catch (error) {
-    throw new ExploreError(`The fit's model does not fit this study's data any more: ${(error as Error).message.replace(/^effects: /, '')}`, 409);
+    throw refuse(`The fit's model does not fit this study's data any more: ${(error as Error).message.replace(/^effects: /, '')}`, 409);
   }
   const n = data.actors.length;
   const state = NetworkState.fromAdjacency(n, periodNetworks(data)[period - 1].start);
@@ -102,7 +100,7 @@ const effectsOf = (s: FitSetting): ExploreEffect[] => s.model.effects.map((e, k)
 export async function choiceOf(dataSource: DataSource, studyId: number, fitId: number, period: number, actor: number): Promise<ChoiceResponse> {
   const s = await fitSetting(dataSource, studyId, fitId, period);
   const n = s.data.actors.length;
-  if (actor >= n) throw new ExploreError(`The study has ${plural(n, 'actor')}, numbered 0 to ${n - 1}; there is no actor ${actor}.`);
+  if (actor >= n) throw refuse(`The study has ${plural(n, 'actor')}, numbered 0 to ${n - 1}; there is no actor ${actor}.`);
   const { options } = explainChoice(s.state, actor, s.effects, s.params);
   const sorted = [...options].sort((a, b) => b.probability - a.probability || a.alter - b.alter);
   return {
@@ -136,7 +134,7 @@ export async function overviewOf(dataSource: DataSource, studyId: number, fitId:
   else {
     const name = orderBy.slice('covariate:'.length);
     const cov = s.data.covariates[name];
-    if (!cov) throw new ExploreError(`The study has no covariate "${name}"; it has ${covNames.length ? covNames.join(', ') : 'none'}.`);
+    if (!cov) throw refuse(`The study has no covariate "${name}"; it has ${covNames.length ? covNames.join(', ') : 'none'}.`);
     // The value at the start of the period; missing values last; ties in value by index.
     const column = cov.values[cov.changing ? Math.min(period - 1, cov.values.length - 1) : 0] as ArrayLike<number>;
     const key = (i: number) => {
@@ -183,7 +181,7 @@ export class ContextCache {
 
 function checkBatchReady(batch: LoadedBatch): void {
   if (batch.summary.state !== 'done') {
-    throw new ExploreError(`This batch is ${batch.summary.state}; chains can be replayed once it is done.`, 409);
+    throw refuse(`This batch is ${batch.summary.state}; chains can be replayed once it is done.`, 409);
   }
 }
 
@@ -191,7 +189,7 @@ function periodIndexOf(batch: LoadedBatch, context: BatchContext, period: number
   const index = context.periods.findIndex((p) => p.period === period);
   if (index < 0) {
     const ps = batch.summary.periods;
-    throw new ExploreError(`This batch simulated period${ps.length === 1 ? '' : 's'} ${ps.join(', ')}; there is no period ${period} in it.`);
+    throw refuse(`This batch simulated period${ps.length === 1 ? '' : 's'} ${ps.join(', ')}; there is no period ${period} in it.`);
   }
   return index;
 }
@@ -222,7 +220,7 @@ export function replayChain(dataSource: DataSource, batch: LoadedBatch, context:
   checkBatchReady(batch);
   const p = periodIndexOf(batch, context, period);
   const chains = batch.row.chains;
-  if (chain > chains) throw new ExploreError(`This batch has ${plural(chains, 'chain')}, numbered 1 to ${chains}; there is no chain ${chain}.`);
+  if (chain > chains) throw refuse(`This batch has ${plural(chains, 'chain')}, numbered 1 to ${chains}; there is no chain ${chain}.`);
   const per = context.periods[p];
   const n = context.n;
   const log = new MinistepLog();
@@ -276,14 +274,14 @@ export function timelinesOf(
   const p = periodIndexOf(batch, context, query.period);
   const n = context.n;
   for (const [i, j] of query.pairs) {
-    if (i >= n || j >= n) throw new ExploreError(`Pair ${i}-${j}: the study has ${plural(n, 'actor')}, numbered 0 to ${n - 1}.`);
-    if (i === j) throw new ExploreError(`Pair ${i}-${j}: a tie joins two different actors.`);
+    if (i >= n || j >= n) throw refuse(`Pair ${i}-${j}: the study has ${plural(n, 'actor')}, numbered 0 to ${n - 1}.`);
+    if (i === j) throw refuse(`Pair ${i}-${j}: a tie joins two different actors.`);
   }
   const keys = new Set(query.pairs.map(([i, j]) => i * n + j));
-  if (keys.size !== query.pairs.length) throw new ExploreError('A pair is listed twice.');
+  if (keys.size !== query.pairs.length) throw refuse('A pair is listed twice.');
   const batchChains = batch.row.chains;
   const chains = query.chains ?? batchChains;
-  if (chains > batchChains) throw new ExploreError(`This batch has ${plural(batchChains, 'chain')}; ${chains} cannot be re-simulated from it.`);
+  if (chains > batchChains) throw refuse(`This batch has ${plural(batchChains, 'chain')}; ${chains} cannot be re-simulated from it.`);
   const per = context.periods[p];
   const grid = evenGrid(query.points ?? DEFAULT_TIMELINE_POINTS);
   const tl = new TieTimelines(n, per.start, query.pairs, grid);
@@ -318,6 +316,6 @@ export function timelinesOf(
 
 export async function actorsOf(dataSource: DataSource, studyId: number, n: number): Promise<string[]> {
   const data = await loadStudyData(dataSource, studyId);
-  if (data.actors.length !== n) throw new ExploreError('The study data changed after this batch was run.', 409);
+  if (data.actors.length !== n) throw refuse('The study data changed after this batch was run.', 409);
   return data.actors;
 }
