@@ -94,7 +94,16 @@ function TimeAxis({ t, onScrub, track }: { t: number; onScrub: (t: number) => vo
   );
 }
 
-function ChainPanel({ replay, track, t, width, index, picker }: { replay: ReplayResponse; track: ChainTrack; t: number; width: number; index: number; picker: React.ReactNode }) {
+function ChainPanel({ replay, track, t, width, index, picker, explainHref }: {
+  replay: ReplayResponse;
+  track: ChainTrack;
+  t: number;
+  width: number;
+  index: number;
+  picker: React.ReactNode;
+  /** Link to the fit's choice explanation of an actor, when the batch simulates a stored fit. */
+  explainHref?: (actor: number) => string;
+}) {
   const frame = useMemo(() => frameOf(track, stepsAtTime(track, t)), [track, t]);
   const last = frame.last;
   const who = last ? replay.actors[last.actor] : null;
@@ -117,6 +126,9 @@ function ChainPanel({ replay, track, t, width, index, picker }: { replay: Replay
       <Text variant="small" testID={`chain-latest-${index}`}>
         {lastWords}
       </Text>
+      {last && explainHref ? (
+        <TextLink href={explainHref(last.actor)}>{`How ${who} weighs the options at the start of the period →`}</TextLink>
+      ) : null}
       <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s2 }} testID={`chain-counts-${index}`}>
         <Figure label="Ministeps" value={String(frame.done)} hint={`of ${replay.ministeps}`} testID={`count-ministeps-${index}`} />
         <Figure label="Changes" value={String(frame.changes)} />
@@ -326,6 +338,7 @@ export function PlaybackScreen() {
             t={t}
             width={panelWidth}
             index={k}
+            explainHref={b?.fitId ? (a) => `/studies/${studyId}/explore/fits/${b.fitId}?actor=${a}&period=${period}` : undefined}
             picker={
               <ChainPicker
                 chain={shown[k]}

@@ -5,7 +5,7 @@
  *   back and sees the counts and the distance follow; then opens a fit's "Why actors choose", picks an
  *   actor in the grid (scrolled sideways) and reads the explanation;
  * - on a desktop (1440 x 900) the lead puts a second chain beside the first, scrubs the time axis,
- *   and sees the whole grid at once.
+ *   follows the link to the acting actor's explanation and sees the whole grid at once.
  * Expected values are recomputed here from the replay's own steps (read over HTTP), never from screenshots.
  */
 import type { Page } from 'playwright-core';
@@ -110,6 +110,8 @@ describe('on a phone', () => {
       await page.waitForURL(new RegExp(`/studies/${studyId}/explore/fits/${fitId}`));
       await page.getByTestId('overview').waitFor();
       expect(await page.getByTestId('overview-scroll').count()).toBe(1); // the grid scrolls sideways on a phone
+      await page.getByTestId('overview').scrollIntoViewIfNeeded();
+      await screenshot(page, 'explore-overview', 'phone');
       await page.getByTestId('overview-row-5').click();
       const choice = await apiGet<ChoiceResponse>(page, `/studies/${studyId}/explore/fits/${fitId}/choices?period=1&actor=5`);
       const card = page.getByTestId('choice-explanation');
@@ -155,10 +157,13 @@ describe('on a desktop', () => {
       await page.getByTestId('timeline-chart').scrollIntoViewIfNeeded();
       await screenshot(page, 'explore-timelines', 'desktop');
 
-      const fitId = demo.fitIds[1];
-      await page.goto(`${server.baseUrl}/studies/${studyId}/explore/fits/${fitId}?actor=2`);
+      // From the playback to the acting actor's explanation (the batch simulates a stored fit).
+      const shownSteps = await figure(page, 'count-ministeps-0');
+      const actor = replay.actors[replay.steps.actor[shownSteps - 1]];
+      await page.getByTestId('chain-panel-0').getByText(`How ${actor} weighs the options at the start of the period →`).click();
+      await page.waitForURL(/\/explore\/fits\/[0-9]+/);
       await page.getByTestId('overview').waitFor();
-      await page.getByTestId('choice-explanation').waitFor();
+      await page.getByTestId('choice-explanation').getByText(`${actor}: every option of one ministep`).waitFor();
       expect(await page.getByTestId('overview-scroll').count()).toBe(0); // whole at once
       await screenshot(page, 'explore-choice', 'desktop');
       expect(b.pageErrors).toEqual([]);
