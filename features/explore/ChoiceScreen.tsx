@@ -8,7 +8,7 @@
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { useMemo, useState } from 'react';
 import { Pressable, ScrollView, View } from 'react-native';
-import Svg, { Circle, G, Line, Rect } from 'react-native-svg';
+import Svg, { Circle, G, Line, Rect, Text as SvgText } from 'react-native-svg';
 import type { ChoiceOptionDto, ChoiceResponse, OverviewResponse } from '../../shared/explore';
 import { parseId } from '../board/queries';
 import { ChoiceChips } from '../consensus/ChoiceChips';
@@ -23,7 +23,7 @@ import { SegmentedControl } from '../ui/SegmentedControl';
 import { Text } from '../ui/Text';
 import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
-import { space } from '../ui/tokens';
+import { fonts, space } from '../ui/tokens';
 import { useBreakpoint } from '../ui/useBreakpoint';
 import { useChoices, useOverview } from './queries';
 import { optionSentences, optionWords, pct } from './words';
@@ -35,16 +35,36 @@ function OverviewGrid({ data, selected, onSelect, width }: { data: OverviewRespo
   const { compact } = useBreakpoint();
   const n = data.actors.length;
   const labelWidth = compact ? 84 : 120;
-  const fitCell = Math.floor((width - labelWidth - 8) / Math.max(1, n));
+  const fitCell = Math.floor((width - labelWidth - 36) / Math.max(1, n));
   const cell = compact ? Math.max(14, Math.min(22, fitCell)) : Math.max(8, Math.min(24, fitCell));
   const ties = useMemo(() => {
     const s = new Set<number>();
     for (const [i, j] of data.startTies) s.add(i * n + j);
     return s;
   }, [data, n]);
-  const gridWidth = labelWidth + cell * n + 8;
+  const gridWidth = labelWidth + cell * n + 36;
   const body = (
     <View style={{ width: gridWidth }} accessibilityLabel={`Grid of first-ministep probabilities: ${n} actors by ${n} alters, ordered ${data.orderChoices.find((c) => c.value === data.orderBy)?.label ?? data.orderBy}. Choose a row to explain that actor.`}>
+      {cell >= 12 ? (
+        <View style={{ flexDirection: 'row' }} accessibilityElementsHidden importantForAccessibility="no-hide-descendants">
+          <View style={{ width: labelWidth }} />
+          <Svg width={cell * n + 30} height={64}>
+            {data.order.map((j, c) => (
+              <SvgText
+                key={j}
+                x={c * cell + cell / 2 + 4}
+                y={60}
+                fontSize={Math.min(12, cell - 2)}
+                fontFamily={fonts.text}
+                fill={colors.muted}
+                transform={`rotate(-60 ${c * cell + cell / 2 + 4} 60)`}
+              >
+                {data.actors[j].slice(0, 8)}
+              </SvgText>
+            ))}
+          </Svg>
+        </View>
+      ) : null}
       {data.order.map((i, r) => (
         <Pressable
           key={i}
