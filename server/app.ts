@@ -2,12 +2,14 @@
  * Builds the Express app of the Wavefit API. No listening and no module-level state, so tests can
  * make many apps (each on its own database) in one process. main.ts adds the web app and listens.
  */
+import compression from 'compression';
 import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
 import { exploreRouter } from './explore/routes';
 import { modelsRouter } from './models/routes';
+import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
@@ -35,6 +37,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
+  // gzip or brotli for every compressible answer above 1 kB (the API's JSON and the web app served after it).
+  app.use(compression());
 
   const smallJson = express.json({ limit: config.jsonLimit });
   const uploadJson = express.json({ limit: config.uploadJsonLimit });
@@ -62,6 +66,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', exploreRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);

@@ -1,6 +1,8 @@
 /**
- * API errors: one class the routes throw, and the Express handlers that turn anything thrown
- * into the contract's shape { error: { code, message, details? } } (shared/api.ts ApiErrorBody).
+ * API errors: the one error type services and routes throw for a refusal (ApiError: status, code,
+ * plain message, details), and the Express handlers that turn anything thrown into the contract's
+ * shape { error: { code, message, details? } } (shared/api.ts ApiErrorBody), once, in errorHandler.
+ * Express 5 passes errors thrown by async handlers to it, so routes need no try/catch of their own.
  * Stack traces never reach the client.
  */
 import type { ErrorRequestHandler, NextFunction, Request, RequestHandler, Response } from 'express';

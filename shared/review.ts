@@ -32,20 +32,26 @@
  *   GET  /studies/:studyId/batches/:batchId/report.csv?table=gof|estimates -> text/csv        (members)
  *   GET  /studies/:studyId/batches/:batchId/report.json?compare=2,3        -> ReportJson      (members)
  *
- * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), batch_not_ready 409
+ * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), acknowledgement_required
+ * 400 (a sign-off of a report with concerns without a reason; details: { concerns }), batch_not_ready 409
  * (the batch has not finished), validation_failed 400 for bodies, not_found 404 for a batch, request
  * or statistic that is not in this study.
  */
 import { z } from 'zod';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
-import type { EnvelopeBandDto, MahalanobisDto } from './batches';
+
+export * from './reviewChart';
 
 export const VERDICTS = ['pass', 'fail', 'unsure'] as const;
+
 export type Verdict = (typeof VERDICTS)[number];
 
 export const MAX_NOTE = 2000;
+
 export const MAX_COMMENT = 4000;
+
 export const MAX_COMPARE = 4;
+
 export const MIN_COMPARE = 2;
 
 /** The plain words of each verdict, shown with its icon (never colour alone). */
@@ -57,6 +63,7 @@ export const VERDICT_WORDS: Record<Verdict, string> = {
 
 // ---------- request bodies ----------
 const statisticSchema = z.enum(AUX_STATISTIC_IDS, { error: `The statistic must be one of: ${AUX_STATISTIC_IDS.join(', ')}.` });
+
 const periodSchema = z
   .number({ error: 'The period is a whole number (period m runs from wave m to wave m + 1).' })
   .int('The period is a whole number (period m runs from wave m to wave m + 1).')
@@ -73,7 +80,9 @@ export const verdictBodySchema = z.object({
     .int('The version is a whole number.')
     .min(0, 'The version is 0 or more.'),
 });
+
 export type VerdictBody = z.input<typeof verdictBodySchema>;
+
 export type ParsedVerdictBody = z.output<typeof verdictBodySchema>;
 
 export const commentBodySchema = z.object({
@@ -85,6 +94,7 @@ export const commentBodySchema = z.object({
     .min(1, 'Write a comment first.')
     .max(MAX_COMMENT, `A comment may have at most ${MAX_COMMENT} characters.`),
 });
+
 export type CommentBody = z.input<typeof commentBodySchema>;
 
 export const reviewRequestBodySchema = z.object({
@@ -94,6 +104,7 @@ export const reviewRequestBodySchema = z.object({
     .max(50, 'At most 50 people can be asked at once.'),
   message: z.string({ error: 'The message must be text.' }).trim().max(1000, 'The message may have at most 1000 characters.').default(''),
 });
+
 export type ReviewRequestBody = z.input<typeof reviewRequestBodySchema>;
 
 export const notificationPreferencesBodySchema = z
@@ -106,11 +117,33 @@ export const notificationPreferencesBodySchema = z
     { error: (issue) => (issue.code === 'unrecognized_keys' ? 'Unknown preference; the preferences are batchEnded, reviewRequested and reportSigned.' : undefined) },
   )
   .refine((b) => Object.keys(b).length > 0, 'Send at least one preference to change.');
+
 export type NotificationPreferencesBody = z.input<typeof notificationPreferencesBodySchema>;
+
+/** The shortest reason accepted when a lead signs off despite a concern (a few words, not "ok"). */
+export const MIN_ACK_REASON = 10;
 
 export const signoffBodySchema = z.object({
   note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  /**
+   * Needed when the report has concerns (ReportStatus.concerns: the fit did not converge, or the
+   * batch ran fewer chains than FEW_CHAINS): the lead's reason for signing off anyway. It goes into
+   * the report. Ignored when there is no concern.
+   */
+  acknowledgement: z
+    .object(
+      {
+        reason: z
+          .string({ error: 'The reason must be text.' })
+          .trim()
+          .min(MIN_ACK_REASON, `Give a reason of at least ${MIN_ACK_REASON} characters for signing off despite the concerns.`)
+          .max(MAX_NOTE, `A reason may have at most ${MAX_NOTE} characters.`),
+      },
+      { error: 'The acknowledgement is an object with a reason.' },
+    )
+    .optional(),
 });
+
 export type SignoffBody = z.input<typeof signoffBodySchema>;
 
 // ---------- responses ----------
@@ -185,6 +218,18 @@ export interface ReviewRequestDto {
   completedAt: string | null;
 }
 
+/** A concern that a sign-off must acknowledge: a code and the plain sentence shown and printed. */
+export interface SignoffConcern {
+  code: 'not_converged' | 'few_chains';
+  message: string;
+}
+
+export interface SignoffAcknowledgement {
+  /** The concerns the lead acknowledged, as they were worded at signing. */
+  concerns: SignoffConcern[];
+  reason: string;
+}
+
 export interface SignoffDto {
   id: number;
   batchId: number;
@@ -193,6 +238,8 @@ export interface SignoffDto {
   note: string;
   /** Verdict counts when it was signed. */
   counts: VerdictCounts;
+  /** Set when the lead signed off despite concerns (non-converged fit, few chains), with the reason given. */
+  acknowledgement: SignoffAcknowledgement | null;
 }
 
 export interface BoardResponse {
@@ -216,6 +263,7 @@ export interface InboxItem {
   reviewed: number;
   total: number;
 }
+
 export interface InboxResponse {
   items: InboxItem[];
 }
@@ -228,6 +276,7 @@ export interface NotificationPreferences {
   /** A lead signed off a fit report of a study I belong to. */
   reportSigned: boolean;
 }
+
 export const DEFAULT_PREFERENCES: NotificationPreferences = { batchEnded: true, reviewRequested: true, reportSigned: true };
 
 // ---------- consensus view ----------
@@ -259,31 +308,51 @@ export interface CompareColumn {
   tauMax: number | null;
 }
 
+/** Significance of an estimate by its t-statistic (estimate / SE) against the normal quantiles: "p1" |t| >= 2.576, "p5" |t| >= 1.960, "none" below. */
+export type Significance = 'p1' | 'p5' | 'none';
+
 export interface CompareEstimateCell {
   value: number;
   se: number | null;
+  /** The convergence t-ratio of the fit (how well the fit converged; not a test of the parameter). */
   convergenceT: number | null;
+  /** t-statistic estimate / SE (null without an SE, and for rate parameters, which are not tested against 0). */
+  t: number | null;
+  significance: Significance | null;
 }
+
 export interface CompareEstimateRow {
   key: string;
   label: string;
   kind: 'rate' | 'objective';
   cells: (CompareEstimateCell | null)[];
-  /** Column whose convergence t-ratio is smallest in absolute value (null when fewer than two have one, or a tie). */
-  better: number | null;
 }
 
 export interface ComparePCell {
   pValue: number;
+  /** Monte Carlo standard error of the p-value, sqrt(p(1 - p) / N) for N chains. */
+  mcSe: number;
+  /** The Mahalanobis distance of the observed statistic. */
+  distance: number;
   verdict: Verdict | null;
 }
+
 export interface ComparePRow {
   statistic: AuxStatisticId;
   label: string;
   period: number;
   cells: (ComparePCell | null)[];
-  /** Column with the highest p-value (null when fewer than two have one, or a tie). */
+  /** Column whose p-value exceeds every other by more than the rule's margin (null otherwise). */
   better: number | null;
+  /** "beyond": one column's p-value is higher beyond Monte Carlo error; "within": the differences are within it; null: fewer than two p-values. */
+  difference: 'beyond' | 'within' | null;
+}
+
+/** Per column: statistics failing at 0.05, how many were tested, and the summed Mahalanobis distance. */
+export interface CompareOverall {
+  failing: number;
+  tested: number;
+  distanceSum: number | null;
 }
 
 export interface CompareResponse {
@@ -293,7 +362,55 @@ export interface CompareResponse {
   pValues: ComparePRow[];
   /** Verdict counts per column (null for a fit without a batch). */
   verdicts: (VerdictCounts | null)[];
+  /** Per column (null for a fit without a batch). */
+  overall: (CompareOverall | null)[];
+  /** The rule for marking a p-value "better", in words. */
+  betterRule: string;
   notes: string[];
+}
+
+/** Two-sided normal quantiles for 5% and 1% (Phi^-1(0.975), Phi^-1(0.995)). */
+export const Z_5 = 1.959964;
+export const Z_1 = 2.575829;
+/** A p-value is marked better only when it exceeds each other by more than this many combined Monte Carlo SEs. */
+export const BETTER_MC_SE_FACTOR = 2;
+export const FAIL_LEVEL = 0.05;
+
+export const SIGNIFICANCE_WORDS: Record<Significance, string> = {
+  p1: 'significant at 1%',
+  p5: 'significant at 5%',
+  none: 'not significant at 5%',
+};
+
+export function significanceOf(t: number | null): Significance | null {
+  if (t === null || !Number.isFinite(t)) return null;
+  const a = Math.abs(t);
+  return a >= Z_1 ? 'p1' : a >= Z_5 ? 'p5' : 'none';
+}
+
+/**
+ * Monte Carlo standard error of a p-value estimated from N chains: sqrt(p(1 - p) / N), with p kept
+ * within [1/(N + 1), N/(N + 1)] so that a p-value at the edge (0 or 1 of N) does not claim to have no
+ * error at all.
+ */
+export function monteCarloSe(p: number, chains: number): number {
+  if (!(chains > 0) || !Number.isFinite(p)) return NaN;
+  const edge = 1 / (chains + 1);
+  const q = Math.min(1 - edge, Math.max(edge, p));
+  return Math.sqrt((q * (1 - q)) / chains);
+}
+
+/**
+ * The column whose p-value is higher than every other present one by more than
+ * BETTER_MC_SE_FACTOR x sqrt(se_i^2 + se_j^2), and whether the row's differences are beyond or within
+ * Monte Carlo error.
+ */
+export function betterPValue(cells: ReadonlyArray<{ pValue: number; mcSe: number } | null>): { better: number | null; difference: 'beyond' | 'within' | null } {
+  const present = cells.map((c, i) => [c, i] as const).filter((e): e is readonly [{ pValue: number; mcSe: number }, number] => e[0] !== null && Number.isFinite(e[0].pValue));
+  if (present.length < 2) return { better: null, difference: null };
+  const top = present.reduce((a, b) => (b[0].pValue > a[0].pValue ? b : a));
+  const clear = present.every(([c, i]) => i === top[1] || top[0].pValue - c.pValue > BETTER_MC_SE_FACTOR * Math.sqrt(top[0].mcSe ** 2 + c.mcSe ** 2));
+  return clear ? { better: top[1], difference: 'beyond' } : { better: null, difference: 'within' };
 }
 
 // ---------- report ----------
@@ -306,6 +423,8 @@ export interface ReportStatus {
   /** True when a verdict or comment changed after the newest sign-off. */
   changedSinceSignoff: boolean;
   canSign: boolean;
+  /** What a sign-off must acknowledge with a reason (empty: it signs off as is). */
+  concerns: SignoffConcern[];
 }
 
 export interface ReportStatisticJson {
@@ -349,6 +468,23 @@ export interface ReportJson {
   software: { wavefit: string; node: string; packages: Record<string, string> };
 }
 
+/**
+ * The concerns a sign-off must acknowledge: a fit that did not converge (its convergence check
+ * failed; hand-entered values have none), and a batch with fewer chains than FEW_CHAINS (the
+ * p-values' Monte Carlo resolution is coarse).
+ */
+export function signoffConcerns(input: { converged: boolean | null; maxAbsT: number | null; tauMax: number | null; chains: number; fewChains: number }): SignoffConcern[] {
+  const out: SignoffConcern[] = [];
+  if (input.converged === false) {
+    const figures = [input.maxAbsT !== null ? `largest |t| ${input.maxAbsT.toFixed(3)}` : null, input.tauMax !== null ? `overall ratio ${input.tauMax.toFixed(3)}` : null].filter(Boolean).join(', ');
+    out.push({ code: 'not_converged', message: `The fit did not converge${figures ? ` (${figures})` : ''}; its estimates may not be the method-of-moments solution.` });
+  }
+  if (input.chains < input.fewChains) {
+    out.push({ code: 'few_chains', message: `The batch ran ${input.chains} chains, fewer than ${input.fewChains}; its p-values are coarse (the smallest possible is 1/${input.chains + 1}).` });
+  }
+  return out;
+}
+
 /** Counts of verdicts over a list of cards. */
 export function countVerdicts(verdicts: ReadonlyArray<Verdict | null>): VerdictCounts {
   const counts: VerdictCounts = { pass: 0, fail: 0, unsure: 0, awaiting: 0, total: verdicts.length };
@@ -357,22 +493,6 @@ export function countVerdicts(verdicts: ReadonlyArray<Verdict | null>): VerdictC
     else counts[v]++;
   }
   return counts;
-}
-
-/** Index of the largest (or smallest) value, or null when fewer than two are given or the best is shared. */
-export function bestIndex(values: ReadonlyArray<number | null>, prefer: 'higher' | 'lower'): number | null {
-  const present = values.map((v, i) => [v, i] as const).filter((e): e is readonly [number, number] => e[0] !== null && Number.isFinite(e[0]));
-  if (present.length < 2) return null;
-  const sign = prefer === 'higher' ? 1 : -1;
-  let best = present[0];
-  let shared = false;
-  for (const e of present.slice(1)) {
-    if (sign * e[0] > sign * best[0]) {
-      best = e;
-      shared = false;
-    } else if (e[0] === best[0]) shared = true;
-  }
-  return shared ? null : best[1];
 }
 
 /** Parses "1,2,3" (a query parameter) into distinct positive ids; throws with a plain message. */
@@ -387,136 +507,4 @@ export function parseIdList(raw: unknown, what: string): number[] {
     if (!ids.includes(id)) ids.push(id);
   }
   return ids;
-}
-
-// ---------- envelope charts (the board and the PDF draw the same picture) ----------
-/**
- * How a statistic is drawn. Counts on one scale (degree and distance distributions) are drawn as they
- * are; statistics whose components live on very different scales (the triad census, where 003 dwarfs
- * 300; the dyad census next to the reciprocity index) are drawn standardised: each component as its
- * distance from the simulated mean in simulated standard deviations, so every component is readable.
- */
-export type ChartScale = 'counts' | 'standardised';
-
-export function chartScaleOf(statistic: AuxStatisticId): ChartScale {
-  return statistic === 'triad_census' || statistic === 'dyad_census' ? 'standardised' : 'counts';
-}
-
-/** One card's envelope data (GET .../board/chart?statistic=&period=). Values are in the statistic's own units. */
-export interface EnvelopeChartDto {
-  batchId: number;
-  statistic: AuxStatisticId;
-  label: string;
-  period: number;
-  components: string[];
-  observed: number[];
-  mean: number[];
-  /** Simulated standard deviation per component (n - 1 in the denominator). */
-  sd: number[];
-  bands: EnvelopeBandDto[];
-  pValue: number;
-  pValueSimulatedOnly: number;
-  distance: number;
-  chains: number;
-  outOfSupport: MahalanobisDto['outOfSupport'];
-  reading: string;
-  caution: string | null;
-  scale: ChartScale;
-}
-
-export interface PlotSeries {
-  scale: ChartScale;
-  /** What the vertical axis shows, in words. */
-  yLabel: string;
-  labels: string[];
-  observed: number[];
-  /** Bands, widest first (drawn first, underneath). */
-  bands: { coverage: number; lower: number[]; upper: number[] }[];
-  /** Per component: the observed value lies outside the widest band. */
-  outside: boolean[];
-  /** Per component: the observed value was clamped to the edge of the axis. */
-  clamped: boolean[];
-  yMin: number;
-  yMax: number;
-  ticks: number[];
-}
-
-/** Largest |z| drawn; farther values sit on the edge with a mark. */
-export const Z_LIMIT = 6;
-
-/** About `count` round tick values covering [min, max] (steps 1, 2 or 5 times a power of ten). */
-export function niceTicks(min: number, max: number, count = 5): number[] {
-  if (!Number.isFinite(min) || !Number.isFinite(max)) return [0];
-  if (max < min) [min, max] = [max, min];
-  if (max === min) return [min];
-  const raw = (max - min) / Math.max(1, count);
-  const power = 10 ** Math.floor(Math.log10(raw));
-  const step = [1, 2, 2.5, 5, 10].map((m) => m * power).find((s) => s >= raw) ?? 10 * power;
-  const ticks: number[] = [];
-  for (let v = Math.ceil(min / step - 1e-9) * step; v <= max + step * 1e-9; v += step) ticks.push(Math.round(v / step) * step);
-  return ticks;
-}
-
-/** The plotted values of a card: raw counts, or standardised components (see chartScaleOf). */
-export function plotSeries(
-  chart: Pick<EnvelopeChartDto, 'components' | 'observed' | 'mean' | 'sd' | 'scale'> & { bands: { coverage: number; lower: number[]; upper: number[] }[] },
-): PlotSeries {
-  const bands = [...chart.bands].sort((a, b) => b.coverage - a.coverage).map((b) => ({ coverage: b.coverage, lower: [...b.lower], upper: [...b.upper] }));
-  const wide = bands[0];
-  const outside = chart.observed.map((x, k) => (wide ? x < wide.lower[k] - 1e-9 || x > wide.upper[k] + 1e-9 : false));
-  let observed = [...chart.observed];
-  const clamped = observed.map(() => false);
-  if (chart.scale === 'standardised') {
-    const z = (x: number, k: number) => {
-      const sd = chart.sd[k];
-      const d = x - chart.mean[k];
-      if (!(sd > 0)) return Math.abs(d) < 1e-9 ? 0 : Math.sign(d) * Infinity;
-      return d / sd;
-    };
-    observed = observed.map((x, k) => z(x, k));
-    for (const b of bands) {
-      b.lower = b.lower.map((x, k) => z(x, k));
-      b.upper = b.upper.map((x, k) => z(x, k));
-    }
-    observed = observed.map((v, k) => {
-      if (Math.abs(v) > Z_LIMIT) {
-        clamped[k] = true;
-        return Math.sign(v) * Z_LIMIT;
-      }
-      return v;
-    });
-  }
-  const values = [...observed, ...bands.flatMap((b) => [...b.lower, ...b.upper])].filter(Number.isFinite);
-  let lo = Math.min(...values);
-  let hi = Math.max(...values);
-  if (chart.scale === 'counts') lo = Math.min(0, lo);
-  else {
-    lo = Math.min(lo, -2);
-    hi = Math.max(hi, 2);
-  }
-  if (hi === lo) hi = lo + 1;
-  const ticks = niceTicks(lo, hi, 4);
-  return {
-    scale: chart.scale,
-    yLabel: chart.scale === 'counts' ? 'count' : 'standard deviations from the simulated mean',
-    labels: chart.components,
-    observed,
-    bands,
-    outside,
-    clamped,
-    yMin: Math.min(lo, ticks[0]),
-    yMax: Math.max(hi, ticks[ticks.length - 1]),
-    ticks,
-  };
-}
-
-/** A p-value in plain words (the verdict stays the team's). */
-export function pValueWords(p: number): { short: string; sentence: string } {
-  if (p < 0.05) return { short: 'Clearly unlike', sentence: 'The observed network is clearly unlike the simulated ones.' };
-  if (p < 0.1) return { short: 'Borderline', sentence: 'The observed network sits at the edge of what the model produces.' };
-  return { short: 'Looks alike', sentence: 'The observed network looks like the simulated ones.' };
-}
-
-export function formatPValue(p: number): string {
-  return p < 0.001 ? p.toExponential(1) : p.toFixed(3);
 }

@@ -1,3 +1,3 @@
-import { InboxScreen } from '../../features/board/InboxScreen';
+import { InboxScreen } from '../../features/inbox/InboxScreen';
 
 export default InboxScreen;

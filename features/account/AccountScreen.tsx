@@ -5,7 +5,7 @@ import { changePasswordBodySchema } from '../../shared/api';
 import { messageOf } from '../api/client';
 import { forgetReturnPath, useSession } from '../auth/session';
 import { fieldErrorsFromApi, validateWith, type FieldErrors } from '../forms/validation';
-import { NotificationPreferences } from '../board/NotificationPreferences';
+import { NotificationPreferences } from '../inbox/NotificationPreferences';
 import { Badge } from '../ui/Badge';
 import { Banner } from '../ui/Banner';
 import { Button } from '../ui/Button';

@@ -21,12 +21,8 @@ import { colors } from '../ui/theme';
 import { space } from '../ui/tokens';
 import { figure, formatP, pWord, stateWords, timeLeft } from './format';
 import { ProgressBar } from './ProgressBar';
+import { parseId } from '../api/params';
 import { batchKeys, useBatch, useBatchMutations, useConsensus, useGof, useGofSummary } from './queries';
-
-function parseId(raw: string | string[] | undefined): number | null {
-  const v = Array.isArray(raw) ? raw[0] : raw;
-  return v && /^[1-9][0-9]{0,15}$/.test(v) ? Number(v) : null;
-}
 
 interface ComponentRow {
   component: string;

@@ -9,7 +9,7 @@ import { EFFECT_CATALOGUE, type EffectId } from '../../shared/effects';
 import type { ModelSummary } from '../../shared/models';
 import { messageOf, type ApiError } from '../api/client';
 import { fieldErrorsFromApi, validateWith, type FieldErrors } from '../forms/validation';
-import { parseStudyId, useStudy } from '../studies/queries';
+import { parseStudyId, useStudy, useStudyData } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
 import { Banner } from '../ui/Banner';
 import { Button, ButtonRow } from '../ui/Button';
@@ -22,7 +22,7 @@ import { TextField } from '../ui/TextField';
 import { TextLink } from '../ui/TextLink';
 import { space } from '../ui/tokens';
 import { Checkbox } from '../ui/Checkbox';
-import { useBatchMutations, useStudyData } from './queries';
+import { useBatchMutations } from './queries';
 
 type Source = 'fit' | 'model';
 

@@ -1,7 +1,7 @@
 /** Batches: cache keys (the API paths), swr hooks with live refresh while a batch runs, and mutations. */
 import useSWR, { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
-import type { StudyDataResponse } from '../../shared/data';
+import { isActive, liveWhile } from '../api/live';
 import type {
   BatchDetail,
   BatchSummary,
@@ -22,23 +22,17 @@ export const batchKeys = {
     `/studies/${studyId}/batches/${batchId}/consensus?period=${period}&threshold=${threshold}`,
   csv: (studyId: number | string, batchId: number | string, statistic: string, period: number) =>
     `/api/studies/${studyId}/batches/${batchId}/statistics.csv?statistic=${encodeURIComponent(statistic)}&period=${period}`,
-  data: (studyId: number | string) => `/studies/${studyId}/data`,
 };
-
-const isActive = (state: string) => state === 'queued' || state === 'running';
-
-/** How often to refresh while something runs: every second (a batch of 1000 chains takes seconds). */
-const LIVE_MS = 1000;
 
 export function useBatches(studyId: number | null) {
   return useSWR<{ batches: BatchSummary[] }, ApiError>(studyId != null ? batchKeys.list(studyId) : null, {
-    refreshInterval: (data) => (data?.batches.some((b) => isActive(b.state)) ? LIVE_MS : 0),
+    refreshInterval: (data) => liveWhile(data?.batches.some((b) => isActive(b.state))),
   });
 }
 
 export function useBatch(studyId: number | null, batchId: number | null) {
   return useSWR<{ batch: BatchDetail }, ApiError>(studyId != null && batchId != null ? batchKeys.detail(studyId, batchId) : null, {
-    refreshInterval: (data) => (data && isActive(data.batch.state) ? LIVE_MS : 0),
+    refreshInterval: (data) => liveWhile(data && isActive(data.batch.state)),
   });
 }
 
@@ -55,10 +49,6 @@ export function useGof(studyId: number, batch: BatchDetail | undefined, statisti
 export function useConsensus(studyId: number, batch: BatchDetail | undefined, period: number | null, threshold: number) {
   const ready = batch?.state === 'done' && period != null;
   return useSWR<ConsensusResponse, ApiError>(ready ? batchKeys.consensus(studyId, batch!.id, period!, threshold) : null);
-}
-
-export function useStudyData(studyId: number | null) {
-  return useSWR<StudyDataResponse, ApiError>(studyId != null ? batchKeys.data(studyId) : null);
 }
 
 export function useBatchMutations(studyId: number) {

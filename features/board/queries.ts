@@ -1,17 +1,13 @@
 /** The review board: cache keys (API paths), swr hooks and mutations that revalidate the right keys. */
 import useSWR, { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
+import { inboxKeys } from '../inbox/queries';
+import { reportKeys } from '../report/keys';
 import type {
   BoardResponse,
   CommentDto,
-  CompareResponse,
-  ConsensusLayoutDto,
   EnvelopeChartDto,
-  InboxResponse,
-  NotificationPreferences,
-  ReportStatus,
   ReviewRequestDto,
-  SignoffDto,
   Verdict,
   VerdictChange,
   VerdictDto,
@@ -24,11 +20,6 @@ export const boardKeys = {
   chart: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/board/chart?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   history: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/verdicts/history?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   comments: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/comments?statistic=${encodeURIComponent(statistic)}&period=${period}`,
-  layout: (s: Id, b: Id, period: number) => `/studies/${s}/batches/${b}/consensus/layout?period=${period}`,
-  compare: (s: Id, batches: number[]) => `/studies/${s}/compare?batches=${batches.join(',')}`,
-  report: (s: Id, b: Id) => `/studies/${s}/batches/${b}/report`,
-  inbox: () => '/me/inbox',
-  preferences: () => '/me/notifications',
   /** Every key that belongs to one batch's review. */
   isOfBatch: (s: Id, b: Id) => (key: unknown) => typeof key === 'string' && key.startsWith(`/studies/${s}/batches/${b}/`),
 };
@@ -49,38 +40,23 @@ export function useComments(studyId: number, batchId: number, statistic: string,
   return useSWR<{ comments: CommentDto[] }, ApiError>(open ? boardKeys.comments(studyId, batchId, statistic, period) : null);
 }
 
-export function useConsensusLayout(studyId: number, batchId: number | null, period: number | null) {
-  return useSWR<ConsensusLayoutDto, ApiError>(batchId != null && period != null ? boardKeys.layout(studyId, batchId, period) : null, { revalidateOnFocus: false });
-}
-
-export function useCompare(studyId: number, batches: number[]) {
-  return useSWR<CompareResponse, ApiError>(batches.length >= 2 ? boardKeys.compare(studyId, batches) : null);
-}
-
-export function useReportStatus(studyId: number, batchId: number | null) {
-  return useSWR<ReportStatus, ApiError>(batchId != null ? boardKeys.report(studyId, batchId) : null);
-}
-
-export function useInbox() {
-  return useSWR<InboxResponse, ApiError>(boardKeys.inbox());
-}
-
-export function usePreferences() {
-  return useSWR<{ preferences: NotificationPreferences }, ApiError>(boardKeys.preferences());
-}
-
-export function useBoardMutations(studyId: number, batchId: number) {
+/** After a change to a batch's review: its board, the card's history and comments, its report status and the inbox. */
+export function useReviewRefresh(studyId: number, batchId: number) {
   const { mutate } = useSWRConfig();
-  const base = `/studies/${studyId}/batches/${batchId}`;
-  const refresh = async (statistic?: string, period?: number) => {
+  return async (statistic?: string, period?: number) => {
     await mutate(boardKeys.board(studyId, batchId));
     if (statistic && period) {
       await mutate(boardKeys.history(studyId, batchId, statistic, period));
       await mutate(boardKeys.comments(studyId, batchId, statistic, period));
     }
-    await mutate(boardKeys.report(studyId, batchId));
-    await mutate(boardKeys.inbox());
+    await mutate(reportKeys.report(studyId, batchId));
+    await mutate(inboxKeys.inbox());
   };
+}
+
+export function useBoardMutations(studyId: number, batchId: number) {
+  const refresh = useReviewRefresh(studyId, batchId);
+  const base = `/studies/${studyId}/batches/${batchId}`;
   return {
     /** Saves a verdict from the version last seen; a stale version throws ApiError 409 verdict_conflict. */
     async saveVerdict(card: { statistic: string; period: number }, verdict: Verdict, note: string, version: number): Promise<VerdictDto> {
@@ -106,33 +82,5 @@ export function useBoardMutations(studyId: number, batchId: number) {
       await refresh();
       return res.request;
     },
-    async signOff(note: string): Promise<SignoffDto> {
-      const res = await api.post<{ signoff: SignoffDto }>(`${base}/report/signoff`, { note });
-      await refresh();
-      return res.signoff;
-    },
   };
-}
-
-export function usePreferenceMutations() {
-  const { mutate } = useSWRConfig();
-  return {
-    async update(change: Partial<NotificationPreferences>): Promise<NotificationPreferences> {
-      const res = await api.patch<{ preferences: NotificationPreferences }>('/me/notifications', change);
-      await mutate(boardKeys.preferences(), res, { revalidate: false });
-      return res.preferences;
-    },
-  };
-}
-
-/** Parses a route id parameter; null unless a positive whole number. */
-export function parseId(raw: string | string[] | undefined): number | null {
-  const v = Array.isArray(raw) ? raw[0] : raw;
-  return v && /^[1-9][0-9]{0,15}$/.test(v) ? Number(v) : null;
-}
-
-/** Parses "1,2,3" from a query parameter into ids (invalid parts dropped). */
-export function parseIds(raw: string | string[] | undefined): number[] {
-  const v = Array.isArray(raw) ? raw.join(',') : raw ?? '';
-  return [...new Set(v.split(',').map((p) => p.trim()).filter((p) => /^[1-9][0-9]{0,15}$/.test(p)).map(Number))];
 }

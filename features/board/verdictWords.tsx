@@ -7,9 +7,9 @@ import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 
 export const verdictLook: Record<Verdict | 'awaiting', { word: string; icon: IconName; fg: string; bg: string; border: string }> = {
-  pass: { word: VERDICT_WORDS.pass, icon: 'pass', fg: colors.pass, bg: colors.passSoft, border: '#B9D7C2' },
-  fail: { word: VERDICT_WORDS.fail, icon: 'fail', fg: colors.fail, bg: colors.failSoft, border: '#E2BDB8' },
-  unsure: { word: VERDICT_WORDS.unsure, icon: 'unsure', fg: colors.unsure, bg: colors.unsureSoft, border: '#E2CFA6' },
+  pass: { word: VERDICT_WORDS.pass, icon: 'pass', fg: colors.pass, bg: colors.passSoft, border: colors.passBorder },
+  fail: { word: VERDICT_WORDS.fail, icon: 'fail', fg: colors.fail, bg: colors.failSoft, border: colors.failBorder },
+  unsure: { word: VERDICT_WORDS.unsure, icon: 'unsure', fg: colors.unsure, bg: colors.unsureSoft, border: colors.unsureBorder },
   awaiting: { word: 'Awaiting review', icon: 'info', fg: colors.muted, bg: colors.surfaceSunk, border: colors.rule },
 };
 

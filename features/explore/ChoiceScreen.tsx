@@ -10,7 +10,7 @@ import { useMemo, useState } from 'react';
 import { Pressable, ScrollView, View } from 'react-native';
 import Svg, { Circle, G, Line, Rect, Text as SvgText } from 'react-native-svg';
 import type { ChoiceOptionDto, ChoiceResponse, OverviewResponse } from '../../shared/explore';
-import { parseId } from '../board/queries';
+import { parseId } from '../api/params';
 import { ChoiceChips } from '../consensus/ChoiceChips';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';

@@ -12,7 +12,7 @@ import Svg, { Line, Rect } from 'react-native-svg';
 import { VictoryAxis, VictoryChart, VictoryLine, VictoryScatter } from 'victory-native';
 import type { ReplayResponse, TimelinesResponse } from '../../shared/explore';
 import { useBatch } from '../batches/queries';
-import { parseId } from '../board/queries';
+import { parseId } from '../api/params';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
 import { Button } from '../ui/Button';

@@ -20,7 +20,8 @@ import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 import { CorrelationGrid } from './CorrelationGrid';
 import { convergenceWord, duration, fitStateWords, fixed, progressWords, tauHigh, tHigh } from './format';
-import { parseId, useFit, useModel, useModelMutations } from './queries';
+import { parseId } from '../api/params';
+import { useFit, useModel, useModelMutations } from './queries';
 
 const resultColumns: Column<FitParameter>[] = [
   {

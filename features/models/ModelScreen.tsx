@@ -28,7 +28,8 @@ import { TextLink } from '../ui/TextLink';
 import { space } from '../ui/tokens';
 import { useBreakpoint } from '../ui/useBreakpoint';
 import { convergenceWord, fitStateWords, fixed } from './format';
-import { parseId, useFit, useFits, useModel, useModelMutations } from './queries';
+import { parseId } from '../api/params';
+import { useFit, useFits, useModel, useModelMutations } from './queries';
 
 interface ParamRow {
   key: string;

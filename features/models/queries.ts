@@ -1,7 +1,7 @@
 /** Models and fits: cache keys (the API paths), swr hooks with live refresh while a fit runs, and mutations. */
 import useSWR, { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
-import type { StudyDataResponse } from '../../shared/data';
+import { isActive, liveWhile } from '../api/live';
 import type {
   FitDetail,
   FitSummary,
@@ -19,17 +19,13 @@ export const modelKeys = {
   detail: (studyId: number | string, modelId: number | string) => `/studies/${studyId}/models/${modelId}`,
   fits: (studyId: number | string, modelId: number | string) => `/studies/${studyId}/models/${modelId}/fits`,
   fit: (studyId: number | string, modelId: number | string, fitId: number | string) => `/studies/${studyId}/models/${modelId}/fits/${fitId}`,
-  data: (studyId: number | string) => `/studies/${studyId}/data`,
 };
 
-export const isActive = (state: string) => state === 'queued' || state === 'running';
-
-/** Refresh every second while a fit runs (a fit takes seconds to a minute). */
-const LIVE_MS = 1000;
+export { isActive };
 
 export function useModels(studyId: number | null) {
   return useSWR<{ models: ModelSummary[] }, ApiError>(studyId != null ? modelKeys.list(studyId) : null, {
-    refreshInterval: (data) => (data?.models.some((m) => m.latestFit && isActive(m.latestFit.state)) ? LIVE_MS : 0),
+    refreshInterval: (data) => liveWhile(data?.models.some((m) => m.latestFit && isActive(m.latestFit.state))),
   });
 }
 
@@ -39,19 +35,15 @@ export function useModel(studyId: number | null, modelId: number | null) {
 
 export function useFits(studyId: number | null, modelId: number | null) {
   return useSWR<{ fits: FitSummary[] }, ApiError>(studyId != null && modelId != null ? modelKeys.fits(studyId, modelId) : null, {
-    refreshInterval: (data) => (data?.fits.some((f) => isActive(f.state)) ? LIVE_MS : 0),
+    refreshInterval: (data) => liveWhile(data?.fits.some((f) => isActive(f.state))),
   });
 }
 
 export function useFit(studyId: number | null, modelId: number | null, fitId: number | null) {
   return useSWR<{ fit: FitDetail }, ApiError>(
     studyId != null && modelId != null && fitId != null ? modelKeys.fit(studyId, modelId, fitId) : null,
-    { refreshInterval: (data) => (data && isActive(data.fit.state) ? LIVE_MS : 0) },
+    { refreshInterval: (data) => liveWhile(data && isActive(data.fit.state)) },
   );
-}
-
-export function useStudyData(studyId: number | null) {
-  return useSWR<StudyDataResponse, ApiError>(studyId != null ? modelKeys.data(studyId) : null);
 }
 
 export function useModelMutations(studyId: number) {
@@ -95,12 +87,4 @@ export function useModelMutations(studyId: number) {
       return fit;
     },
   };
-}
-
-/** Parses a positive whole-number route parameter; null otherwise. */
-export function parseId(raw: string | string[] | undefined): number | null {
-  const v = Array.isArray(raw) ? raw[0] : raw;
-  if (!v || !/^[1-9][0-9]{0,15}$/.test(v)) return null;
-  const n = Number(v);
-  return Number.isSafeInteger(n) ? n : null;
 }

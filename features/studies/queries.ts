@@ -2,10 +2,14 @@
 import useSWR, { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
 import type { CreateStudyBody, StudySummary, UpdateStudyBody } from '../../shared/api';
+import type { StudyDataResponse } from '../../shared/data';
+import { parseId } from '../api/params';
 
 export const studyKeys = {
   list: () => '/studies',
   detail: (studyId: number | string) => `/studies/${studyId}`,
+  /** The study's uploaded data: waves, actors, covariates and their summaries. */
+  data: (studyId: number | string) => `/studies/${studyId}/data`,
   /** Every key that belongs to one study (detail, team, and what later features add). */
   isOfStudy: (studyId: number | string) => (key: unknown) =>
     typeof key === 'string' && (key === `/studies/${studyId}` || key.startsWith(`/studies/${studyId}/`)),
@@ -17,6 +21,11 @@ export function useStudies() {
 
 export function useStudy(studyId: number | string | null | undefined) {
   return useSWR<{ study: StudySummary }, ApiError>(studyId != null ? studyKeys.detail(studyId) : null);
+}
+
+/** The study's data summaries (the model form and the batch form read the waves and covariates from it). */
+export function useStudyData(studyId: number | null) {
+  return useSWR<StudyDataResponse, ApiError>(studyId != null ? studyKeys.data(studyId) : null);
 }
 
 export function useStudyMutations() {
@@ -37,10 +46,5 @@ export function useStudyMutations() {
   };
 }
 
-/** Parses the studyId route parameter; null when it is not a positive whole number. */
-export function parseStudyId(raw: string | string[] | undefined): number | null {
-  const value = Array.isArray(raw) ? raw[0] : raw;
-  if (!value || !/^[1-9][0-9]{0,15}$/.test(value)) return null;
-  const n = Number(value);
-  return Number.isSafeInteger(n) ? n : null;
-}
+/** Parses the studyId route parameter (parseId of ../api/params.ts); null when it is not a positive whole number. */
+export const parseStudyId = parseId;

@@ -8,10 +8,10 @@ export type BadgeTone = 'neutral' | 'accent' | 'pass' | 'fail' | 'unsure';
 
 const tones: Record<BadgeTone, { fg: string; bg: string; border: string }> = {
   neutral: { fg: colors.muted, bg: colors.surfaceSunk, border: colors.rule },
-  accent: { fg: colors.accent, bg: colors.accentSoft, border: '#B5D3CF' },
-  pass: { fg: colors.pass, bg: colors.passSoft, border: '#B9D7C2' },
-  fail: { fg: colors.fail, bg: colors.failSoft, border: '#E2BDB8' },
-  unsure: { fg: colors.unsure, bg: colors.unsureSoft, border: '#E2CFA6' },
+  accent: { fg: colors.accent, bg: colors.accentSoft, border: colors.accentBorder },
+  pass: { fg: colors.pass, bg: colors.passSoft, border: colors.passBorder },
+  fail: { fg: colors.fail, bg: colors.failSoft, border: colors.failBorder },
+  unsure: { fg: colors.unsure, bg: colors.unsureSoft, border: colors.unsureBorder },
 };
 
 /** A small label; the word carries the meaning, the tone and optional icon only support it. */

@@ -35,7 +35,7 @@ interface PressState {
 const palette: Record<ButtonVariant, { bg: string; bgActive: string; fg: string; border: string }> = {
   primary: { bg: colors.accent, bgActive: colors.accentPressed, fg: colors.onAccent, border: colors.accent },
   secondary: { bg: colors.surface, bgActive: colors.surfaceSunk, fg: colors.accent, border: colors.ruleStrong },
-  danger: { bg: colors.fail, bgActive: '#842F2F', fg: colors.onAccent, border: colors.fail },
+  danger: { bg: colors.fail, bgActive: colors.failPressed, fg: colors.onAccent, border: colors.fail },
   quiet: { bg: 'transparent', bgActive: colors.surfaceSunk, fg: colors.accent, border: 'transparent' },
 };
 

@@ -4,36 +4,11 @@
  * verdict colours that always travel with a word and an icon.
  */
 import type { TextStyle } from 'react-native';
+import { palette } from '../../shared/palette';
 import { fontSize, fonts, lineHeight } from './tokens';
 
-export const colors = {
-  /** Page background. */
-  paper: '#F6F4EF',
-  /** Cards, inputs and table bodies sit one step lighter than the page. */
-  surface: '#FCFBF8',
-  /** A quiet fill for table headers, selected rows and the side bar. */
-  surfaceSunk: '#EFECE4',
-  ink: '#1D2433',
-  muted: '#5B6475',
-  rule: '#D9D4C7',
-  /** A stronger rule for input borders (3:1 against paper for non-text contrast). */
-  ruleStrong: '#8C8677',
-  accent: '#0E6E6E',
-  accentPressed: '#0A5656',
-  /** Accent tint for the selected navigation item and info banners. */
-  accentSoft: '#DCEBE8',
-  onAccent: '#FFFFFF',
-  envelopeWide: '#8FA3BF',
-  envelopeNarrow: '#4F6A8F',
-  pass: '#2F7D4F',
-  passSoft: '#DFEEE3',
-  fail: '#A23B3B',
-  failSoft: '#F4E1DE',
-  unsure: '#9A6B12',
-  unsureSoft: '#F3E8D2',
-  /** Keyboard focus ring. */
-  focus: '#0E6E6E',
-} as const;
+/** The role-named colours: the shared palette (shared/palette.ts), also used by the PDF report. */
+export const colors = palette;
 export type ColorRole = keyof typeof colors;
 
 /** Text styles. Numbers in tables and figures use `figure` (mono, tabular). */

@@ -8,7 +8,7 @@ import type { DataSource } from 'typeorm';
 import type { BatchModel } from '../../shared/batches';
 import { effectInfo, isEffectId } from '../../shared/effects';
 import type { FitResults } from '../../shared/models';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 
 export class FitNotUsable extends Error {}
 

@@ -9,23 +9,9 @@ import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
-import {
-  BatchInputError,
-  batchDetail,
-  cancelBatch,
-  checkPeriod,
-  checkStatistic,
-  consensusOf,
-  createBatch,
-  getBatch,
-  gofOf,
-  gofSummaryOf,
-  listBatches,
-  parseCoverages,
-  periodMatrix,
-  statisticsCsv,
-  type LoadedBatch,
-} from './service';
+import { consensusOf } from './consensus';
+import { checkPeriod, checkStatistic, gofOf, gofSummaryOf, parseCoverages, periodMatrix, statisticsCsv } from './gof';
+import { batchDetail, cancelBatch, createBatch, getBatch, listBatches, type LoadedBatch } from './service';
 
 /** Stored rows of finished batches, kept in memory for the views (results never change once done). */
 class MatrixCache {
@@ -42,14 +28,6 @@ class MatrixCache {
     this.entries.set(key, hit);
     return hit;
   }
-}
-
-function toApiError(error: unknown): unknown {
-  if (error instanceof BatchInputError) {
-    const code = (error.status === 409 ? 'batch_not_ready' : error.code);
-    return new ApiError(error.status, code, error.message, error.details);
-  }
-  return error;
 }
 
 export function batchesRouter(deps: RouteDeps): Router {
@@ -85,12 +63,8 @@ export function batchesRouter(deps: RouteDeps): Router {
   router.post('/:studyId/batches', auth.requireUser, auth.requireStudyRole('runBatches'), validate(createBatchBodySchema), async (req, res) => {
     const { study } = currentStudy(req);
     const user = currentUser(req);
-    try {
-      const id = await createBatch(dataSource, { studyId: study.id, userId: user.id, body: req.body as ParsedCreateBatchBody });
-      res.status(201).json({ batch: batchDetail(dataSource, getBatch(dataSource, study.id, id)!) });
-    } catch (error) {
-      throw toApiError(error);
-    }
+    const id = await createBatch(dataSource, { studyId: study.id, userId: user.id, body: req.body as ParsedCreateBatchBody });
+    res.status(201).json({ batch: batchDetail(dataSource, getBatch(dataSource, study.id, id)!) });
   });
 
   router.get('/:studyId/batches/:batchId', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
@@ -105,55 +79,39 @@ export function batchesRouter(deps: RouteDeps): Router {
 
   router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
     const batch = loadBatch(req);
-    try {
-      const period = checkPeriod(batch, req.query.period);
-      const statistic = checkStatistic(batch, req.query.statistic);
-      const coverages = parseCoverages(req.query.coverage);
-      finished(batch);
-      res.json(gofOf(batch, matrixOf(batch, period), statistic, period, coverages));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    const period = checkPeriod(batch, req.query.period);
+    const statistic = checkStatistic(batch, req.query.statistic);
+    const coverages = parseCoverages(req.query.coverage);
+    finished(batch);
+    res.json(gofOf(batch, matrixOf(batch, period), statistic, period, coverages));
   });
 
   router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
     const batch = loadBatch(req);
-    try {
-      const period = checkPeriod(batch, req.query.period);
-      const coverages = parseCoverages(req.query.coverage);
-      finished(batch);
-      res.json(gofSummaryOf(batch, matrixOf(batch, period), period, coverages));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    const period = checkPeriod(batch, req.query.period);
+    const coverages = parseCoverages(req.query.coverage);
+    finished(batch);
+    res.json(gofSummaryOf(batch, matrixOf(batch, period), period, coverages));
   });
 
   router.get('/:studyId/batches/:batchId/consensus', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
-    try {
-      const period = checkPeriod(batch, req.query.period);
-      finished(batch);
-      res.json(await consensusOf(dataSource, batch, period, { threshold: req.query.threshold, top: req.query.top }));
-    } catch (error) {
-      throw toApiError(error);
-    }
+    const period = checkPeriod(batch, req.query.period);
+    finished(batch);
+    res.json(await consensusOf(dataSource, batch, period, { threshold: req.query.threshold, top: req.query.top }));
   });
 
   router.get('/:studyId/batches/:batchId/statistics.csv', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
     const batch = loadBatch(req);
-    try {
-      const period = checkPeriod(batch, req.query.period);
-      const statistic = checkStatistic(batch, req.query.statistic);
-      finished(batch);
-      const csv = statisticsCsv(batch, matrixOf(batch, period), statistic, period);
-      res
-        .status(200)
-        .type('text/csv; charset=utf-8')
-        .set('Content-Disposition', `attachment; filename="batch-${batch.row.id}-${statistic.layout.statistic}-period-${period}.csv"`)
-        .send(csv);
-    } catch (error) {
-      throw toApiError(error);
-    }
+    const period = checkPeriod(batch, req.query.period);
+    const statistic = checkStatistic(batch, req.query.statistic);
+    finished(batch);
+    const csv = statisticsCsv(batch, matrixOf(batch, period), statistic, period);
+    res
+      .status(200)
+      .type('text/csv; charset=utf-8')
+      .set('Content-Disposition', `attachment; filename="batch-${batch.row.id}-${statistic.layout.statistic}-period-${period}.csv"`)
+      .send(csv);
   });
 
   return router;

@@ -2,25 +2,30 @@
  * Command line for users who script: auxiliary statistics of a network file, and simulated chains from a
  * JSON specification. Output is JSON on stdout; errors are one clear line on stderr with a non-zero code.
  *
- *   stats FILE [--max-degree K] [--max-distance K]
+ *   stats FILE [--format edgelist|matrix] [--missing MARKER] [--max-degree K] [--max-distance K]
  *   simulate SPEC.json
  *
  * `runCli` is separate from the process entry (main.ts) so tests can call it in-process.
  */
 import { readFileSync } from 'node:fs';
 import { z } from 'zod';
+import { DATA_FORMATS, type DataFormat, type DataProblem } from '../../shared/data';
 import { EFFECT_IDS } from '../../shared/effects';
+import { readCsv } from '../data/csv';
+import { parseNetworkFile, TIE_MISSING } from '../data/parse';
 import { buildEffects, type CovariateValues } from '../engine/effects';
-import { parseNetworkCsv } from '../engine/io/csv-network';
 import { streamFor } from '../engine/prng';
 import { simulatePeriod, targetStatistics } from '../engine/simulate';
 import { NetworkState, NO_CACHES } from '../engine/state';
 import { allAuxStatistics, type AuxOptions, type AuxValues } from '../engine/statistics';
 
 export const USAGE = `usage:
-  npm run cli -- stats FILE [--max-degree K] [--max-distance K]
-      FILE: an edge list (sender,receiver; header optional) or a square 0/1 matrix with actor labels
-      in the first row and column. Prints the auxiliary statistics as JSON.
+  npm run cli -- stats FILE [--format edgelist|matrix] [--missing MARKER] [--max-degree K] [--max-distance K]
+      FILE: one wave in the upload's format (the same reader and rules as an upload): an edge list
+      (sender,receiver; header optional) or a square 0/1 matrix with actor labels in the first row
+      and column. Without --format, a file whose first cell is empty or whose first line has more
+      than three fields is read as a matrix, any other as an edge list. Prints the auxiliary
+      statistics as JSON; a network with missing pairs is refused.
   npm run cli -- simulate SPEC.json
       Runs chains of one period from a JSON specification and prints each chain's end-network
       statistics as JSON. Fields: actors, start (list of [sender, receiver]), covariates (optional),
@@ -102,8 +107,21 @@ function readInput(io: CliIO, file: string): string {
   }
 }
 
+/** The format of a network file when the user does not say: a matrix starts with an empty corner cell or has more than three columns. */
+export function detectFormat(content: string): DataFormat {
+  const first = readCsv(content).rows[0]?.fields ?? [];
+  return first[0] === '' || first.length > 3 ? 'matrix' : 'edgelist';
+}
+
+function describeProblem(file: string, p: DataProblem): string {
+  const place = [p.line !== undefined ? `line ${p.line}` : '', p.column !== undefined ? `column ${p.column}` : ''].filter(Boolean).join(', ');
+  return `${file}${place ? ` ${place}` : ''}: ${p.message}`;
+}
+
 function statsCommand(args: string[], io: CliIO): void {
   let file: string | undefined;
+  let format: DataFormat | undefined;
+  let missingMarker = 'NA';
   const options: AuxOptions = {};
   for (let k = 0; k < args.length; k++) {
     const a = args[k];
@@ -111,20 +129,41 @@ function statsCommand(args: string[], io: CliIO): void {
     else if (a === '--max-distance') {
       options.maxDistance = parseIntFlag(args, k++, a);
       if (options.maxDistance < 1) throw new CliError('--max-distance must be at least 1');
+    } else if (a === '--format') {
+      const v = args[++k];
+      if (!(DATA_FORMATS as readonly string[]).includes(v)) throw new CliError(`--format is ${DATA_FORMATS.join(' or ')}, got ${v === undefined ? 'nothing' : `"${v}"`}`);
+      format = v as DataFormat;
+    } else if (a === '--missing') {
+      const v = args[++k];
+      if (!v) throw new CliError('--missing needs the marker of a missing value (e.g. NA)');
+      missingMarker = v;
     } else if (a.startsWith('--')) throw new CliError(`unknown option ${a}`);
     else if (file === undefined) file = a;
     else throw new CliError(`stats takes one file, got also "${a}"`);
   }
   if (file === undefined) throw new CliError('stats needs a network file');
-  const parsed = parseNetworkCsv(readInput(io, file));
-  const state = NetworkState.fromAdjacency(parsed.n, parsed.adj, NO_CACHES);
+  const content = readInput(io, file);
+  const used = format ?? detectFormat(content);
+  const parsed = parseNetworkFile(file, content, used, missingMarker);
+  if (!parsed.ok) {
+    const [first, ...more] = parsed.details.problems;
+    throw new CliError(describeProblem(file, first) + (more.length ? ` (and ${more.length}${parsed.details.truncated ? '+' : ''} more problems)` : ''));
+  }
+  const { actors, adjacency } = parsed.network;
+  const n = actors.length;
+  const missing = adjacency.reduce((count, v) => count + (v === TIE_MISSING ? 1 : 0), 0);
+  if (missing > 0) {
+    throw new CliError(
+      `${file}: ${missing} pair${missing === 1 ? ' is' : 's are'} missing ("${missingMarker}"); the command line computes statistics of complete networks only`,
+    );
+  }
+  const state = NetworkState.fromAdjacency(n, adjacency, NO_CACHES);
   const result = {
     file,
-    format: parsed.format,
-    n: parsed.n,
-    actors: parsed.actors,
+    format: used,
+    n,
+    actors,
     ties: state.ties,
-    warnings: parsed.warnings,
     statistics: vectors(allAuxStatistics(state, options)),
   };
   io.stdout(JSON.stringify(result, null, 2) + '\n');

@@ -2,23 +2,18 @@
  * Parsing and validation of a study data upload (pure: no I/O, no Express).
  * The file conventions are documented in shared/data.ts. Everything is checked before anything is
  * stored; problems name the file, line and column (the field's position, from 1).
+ * This file puts an upload together (parseUpload) and reads one network file on its own
+ * (parseNetworkFile); the files themselves are read by ./files.ts, ./actorsFile.ts and ./waveFiles.ts.
  */
-import {
-  MAX_ACTORS,
-  MAX_FILE_BYTES,
-  MAX_LABEL_LENGTH,
-  type CovariateKind,
-  type DataFormat,
-  type DataProblemDetails,
-  type ParsedDataUploadBody,
-} from '../../shared/data';
-import { readCsv, type CsvRow } from './csv';
+import type { CovariateKind, DataFormat, DataProblemDetails, ParsedDataUploadBody } from '../../shared/data';
+import { parseActors } from './actorsFile';
+import { checkActorCount, readFile } from './files';
 import { ProblemList } from './problems';
+import { TIE_MISSING } from './ties';
+import { actorsInOrderOfAppearance, edgeListAdjacency, parseEdgeList, parseMatrix } from './waveFiles';
 
-/** Cell codes of a stored adjacency matrix (row-major n*n, sender row, receiver column). */
-export const TIE_ABSENT = 0;
-export const TIE_PRESENT = 1;
-export const TIE_MISSING = 2;
+/** Cell codes of a stored adjacency matrix (./ties.ts); imported from here by the rest of the server. */
+export { TIE_ABSENT, TIE_MISSING, TIE_PRESENT } from './ties';
 
 export type CovariateValue = number | string | null;
 
@@ -46,277 +41,10 @@ export interface ParsedStudyData {
 
 export type ParseResult = { ok: true; data: ParsedStudyData } | { ok: false; details: DataProblemDetails };
 
-const HEADER_PAIRS = [
-  ['sender', 'receiver'],
-  ['from', 'to'],
-  ['ego', 'alter'],
-  ['source', 'target'],
-];
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-const CHANGING = /^(.+)@(\d+)$/;
-
-interface SourceFile {
-  name: string;
-  rows: CsvRow[];
-}
-
 function waveFileName(label: string, position: number, fileName?: string): string {
   const base = label ? `wave "${label}"` : `wave ${position + 1}`;
   return fileName && fileName !== label ? `${base} (${fileName})` : base;
 }
-
-/** Size, emptiness and CSV syntax; returns the rows, or null when the file cannot be read further. */
-function readFile(name: string, content: string, problems: ProblemList): SourceFile | null {
-  const bytes = Buffer.byteLength(content, 'utf8');
-  if (bytes > MAX_FILE_BYTES) {
-    problems.add(name, `The file has ${(bytes / 1_048_576).toFixed(1)} MB; at most ${MAX_FILE_BYTES / 1_048_576} MB are allowed per file.`);
-    return null;
-  }
-  const csv = readCsv(content);
-  for (const p of csv.problems) problems.add(name, p.message, p.line, p.column);
-  if (csv.rows.length === 0) {
-    if (csv.problems.length === 0) problems.add(name, 'The file is empty.');
-    return null;
-  }
-  return { name, rows: csv.rows };
-}
-
-function checkLabel(label: string, file: string, line: number, column: number, problems: ProblemList, what = 'actor label'): boolean {
-  if (label === '') {
-    problems.add(file, `The ${what} is empty.`, line, column);
-    return false;
-  }
-  if (label.length > MAX_LABEL_LENGTH) {
-    problems.add(file, `The ${what} "${label.slice(0, 20)}…" has ${label.length} characters; at most ${MAX_LABEL_LENGTH} are allowed.`, line, column);
-    return false;
-  }
-  return true;
-}
-
-// ---------- actors file ----------
-
-interface ActorsFile {
-  labels: string[];
-  covariates: ParsedCovariate[];
-}
-
-function parseActors(file: SourceFile, waveCount: number, missingMarker: string, problems: ProblemList): ActorsFile | null {
-  const [header, ...body] = file.rows;
-  if (header.fields[0].toLowerCase() !== 'label') {
-    problems.add(
-      file.name,
-      `The first line must be a header whose first column is "label" (found "${header.fields[0]}").`,
-      header.line,
-      1,
-    );
-    return null;
-  }
-  // Columns: constant "name" or changing "name@wave".
-  const constant = new Map<string, number>(); // name -> field position
-  const changing = new Map<string, Map<number, number>>(); // name -> wave -> field position
-  const seen = new Map<string, number>();
-  let headerOk = true;
-  header.fields.slice(1).forEach((raw, k) => {
-    const column = k + 2;
-    if (!checkLabel(raw, file.name, header.line, column, problems, 'covariate name')) {
-      headerOk = false;
-      return;
-    }
-    if (seen.has(raw)) {
-      problems.add(file.name, `The column "${raw}" appears twice (first in column ${seen.get(raw)}).`, header.line, column);
-      headerOk = false;
-      return;
-    }
-    seen.set(raw, column);
-    const match = CHANGING.exec(raw);
-    if (match) {
-      const waves = changing.get(match[1]) ?? new Map<number, number>();
-      waves.set(Number(match[2]), k + 1);
-      changing.set(match[1], waves);
-    } else {
-      constant.set(raw, k + 1);
-    }
-  });
-  for (const [name, waves] of changing) {
-    if (constant.has(name)) {
-      problems.add(file.name, `"${name}" is both a constant column and a changing one ("${name}@…"); use one form.`, header.line, constant.get(name)! + 1);
-      headerOk = false;
-      continue;
-    }
-    const numbers = [...waves.keys()].sort((a, b) => a - b);
-    const gapless = numbers.every((w, k) => w === k + 1);
-    if (!gapless || numbers.length < waveCount - 1 || numbers.length > waveCount) {
-      problems.add(
-        file.name,
-        `The changing covariate "${name}" needs one column per wave, "${name}@1" to "${name}@${waveCount - 1}" (or to @${waveCount}); found @${numbers.join(', @')}.`,
-        header.line,
-        waves.get(numbers[0])! + 1,
-      );
-      headerOk = false;
-    }
-  }
-
-  const labels: string[] = [];
-  const firstLine = new Map<string, number>();
-  const cells: string[][] = [];
-  for (const row of body) {
-    if (row.fields.length !== header.fields.length) {
-      problems.add(file.name, `This line has ${row.fields.length} fields; the header has ${header.fields.length}.`, row.line);
-      continue;
-    }
-    const label = row.fields[0];
-    if (!checkLabel(label, file.name, row.line, 1, problems)) continue;
-    if (firstLine.has(label)) {
-      problems.add(file.name, `Duplicate actor label "${label}" (first on line ${firstLine.get(label)}).`, row.line, 1);
-      continue;
-    }
-    firstLine.set(label, row.line);
-    labels.push(label);
-    cells.push(row.fields);
-  }
-  if (labels.length === 0 && body.length === 0) {
-    problems.add(file.name, 'The actors file has a header but no actors.', header.line);
-    return null;
-  }
-  if (!headerOk) return null;
-
-  const covariates: ParsedCovariate[] = [];
-  const build = (name: string, positions: number[], isChanging: boolean) => {
-    const raw = positions.map((p) => cells.map((r) => r[p]));
-    const observed = raw.flat().filter((v) => v !== '' && v !== missingMarker);
-    if (observed.length === 0) {
-      problems.add(file.name, `The covariate "${name}" has no observed values.`, header.line, positions[0] + 1);
-      return;
-    }
-    const kind: CovariateKind = observed.every((v) => NUMBER.test(v)) ? 'numeric' : 'categorical';
-    const values = raw.map((column) =>
-      column.map((v): CovariateValue => (v === '' || v === missingMarker ? null : kind === 'numeric' ? Number(v) : v)),
-    );
-    const categories = kind === 'categorical' ? [...new Set(observed)].sort((a, b) => a.localeCompare(b, 'en')) : [];
-    covariates.push({ name, kind, changing: isChanging, categories, values });
-  };
-  for (const [name, position] of constant) build(name, [position], false);
-  for (const [name, waves] of changing) {
-    build(name, [...waves.keys()].sort((a, b) => a - b).map((w) => waves.get(w)!), true);
-  }
-  return { labels, covariates };
-}
-
-// ---------- edge lists ----------
-
-interface EdgeEntry {
-  sender: string;
-  receiver: string;
-  value: number;
-  line: number;
-}
-
-function parseEdgeList(file: SourceFile, missingMarker: string, problems: ProblemList): EdgeEntry[] {
-  const entries: EdgeEntry[] = [];
-  const firstSeen = new Map<string, number>();
-  file.rows.forEach((row, k) => {
-    const f = row.fields;
-    if (k === 0 && f.length >= 2 && HEADER_PAIRS.some(([a, b]) => f[0].toLowerCase() === a && f[1].toLowerCase() === b)) return;
-    if (f.length < 2 || f.length > 3) {
-      problems.add(file.name, `Expected "sender,receiver" (and optionally a value); this line has ${f.length} field${f.length === 1 ? '' : 's'}.`, row.line);
-      return;
-    }
-    const [sender, receiver] = f;
-    if (!checkLabel(sender, file.name, row.line, 1, problems) || !checkLabel(receiver, file.name, row.line, 2, problems)) return;
-    let value = TIE_PRESENT;
-    if (f.length === 3) {
-      if (f[2] === '1') value = TIE_PRESENT;
-      else if (f[2] === '0') value = TIE_ABSENT;
-      else if (f[2] === missingMarker) value = TIE_MISSING;
-      else {
-        problems.add(file.name, `The value "${f[2]}" is not 0, 1 or the missing marker "${missingMarker}".`, row.line, 3);
-        return;
-      }
-    }
-    if (sender === receiver) {
-      problems.add(file.name, `Self-tie: "${sender}" names themself; ties to oneself are not allowed.`, row.line, 2);
-      return;
-    }
-    const key = `${sender}\u0000${receiver}`;
-    if (firstSeen.has(key)) {
-      problems.add(file.name, `Duplicate tie "${sender}" → "${receiver}" (first on line ${firstSeen.get(key)}).`, row.line, 1);
-      return;
-    }
-    firstSeen.set(key, row.line);
-    entries.push({ sender, receiver, value, line: row.line });
-  });
-  return entries;
-}
-
-// ---------- matrices ----------
-
-interface MatrixFile {
-  labels: string[];
-  /** Row-major codes in the file's own order. */
-  cells: Uint8Array;
-  headerLine: number;
-}
-
-function parseMatrix(file: SourceFile, missingMarker: string, problems: ProblemList): MatrixFile | null {
-  const [header, ...body] = file.rows;
-  const labels = header.fields.slice(1);
-  const start = problems.count;
-  const seen = new Map<string, number>();
-  labels.forEach((label, j) => {
-    if (!checkLabel(label, file.name, header.line, j + 2, problems)) return;
-    if (seen.has(label)) {
-      problems.add(file.name, `Duplicate actor label "${label}" in the first row (first in column ${seen.get(label)}).`, header.line, j + 2);
-    } else seen.set(label, j + 2);
-  });
-  const n = labels.length;
-  if (n === 0) {
-    problems.add(file.name, 'The first row must hold the actor labels, after one corner cell.', header.line);
-    return null;
-  }
-  if (body.length !== n) {
-    problems.add(
-      file.name,
-      `The matrix is not square: the first row names ${n} actor${n === 1 ? '' : 's'} but ${body.length} row${body.length === 1 ? '' : 's'} follow.`,
-      body[n]?.line ?? header.line,
-    );
-  }
-  const cells = new Uint8Array(n * n);
-  body.slice(0, n).forEach((row, i) => {
-    if (row.fields[0] !== labels[i]) {
-      problems.add(
-        file.name,
-        `The row label "${row.fields[0]}" differs from the column label "${labels[i]}" in the same position; rows and columns must list the actors in the same order.`,
-        row.line,
-        1,
-      );
-    }
-    if (row.fields.length !== n + 1) {
-      problems.add(file.name, `The matrix is not square: this row has ${row.fields.length - 1} values for ${n} columns.`, row.line);
-      return;
-    }
-    for (let j = 0; j < n; j++) {
-      const raw = row.fields[j + 1];
-      let code: number;
-      if (raw === '0') code = TIE_ABSENT;
-      else if (raw === '1') code = TIE_PRESENT;
-      else if (raw === missingMarker) code = TIE_MISSING;
-      else {
-        problems.add(file.name, `The value "${raw}" is not 0, 1 or the missing marker "${missingMarker}".`, row.line, j + 2);
-            continue;
-      }
-      if (i === j) {
-        if (code === TIE_PRESENT) {
-          problems.add(file.name, `Self-tie: the diagonal cell of "${labels[i]}" is 1; ties to oneself are not allowed.`, row.line, j + 2);
-        }
-        code = TIE_ABSENT;
-      }
-      cells[i * n + j] = code;
-    }
-  });
-  return problems.count > start ? null : { labels, cells, headerLine: header.line };
-}
-
-// ---------- the whole upload ----------
 
 export function parseUpload(body: ParsedDataUploadBody): ParseResult {
   const problems = new ProblemList();
@@ -343,30 +71,13 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
 
   if (body.format === 'edgelist') {
     const lists = waveSources.map((src) => (src ? parseEdgeList(src, marker, problems) : null));
-    if (!actors && !body.actors) {
-      const order = new Set<string>();
-      for (const list of lists) for (const e of list ?? []) order.add(e.sender).add(e.receiver);
-      actors = [...order];
-    }
+    if (!actors && !body.actors) actors = actorsInOrderOfAppearance(lists);
     if (actors) {
       const index = new Map(actors.map((a, i) => [a, i]));
-      const n = actors.length;
       lists.forEach((list, k) => {
         if (!list) return;
-        const adjacency = new Uint8Array(n * n);
-        let ok = true;
-        for (const e of list) {
-          const s = index.get(e.sender);
-          const r = index.get(e.receiver);
-          if (s === undefined || r === undefined) {
-            const label = s === undefined ? e.sender : e.receiver;
-            problems.add(names[k], `Unknown actor "${label}": not in the actors file.`, e.line, s === undefined ? 1 : 2);
-            ok = false;
-            continue;
-          }
-          adjacency[s * n + r] = e.value;
-        }
-        if (ok) waves.push({ label: body.waves[k].label, adjacency });
+        const adjacency = edgeListAdjacency(list, index, names[k], problems);
+        if (adjacency) waves.push({ label: body.waves[k].label, adjacency });
       });
     }
   } else {
@@ -407,15 +118,49 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
     }
   }
 
-  if (actors && problems.count === 0) {
-    if (actors.length < 2) problems.add('', `A network needs at least 2 actors; found ${actors.length}.`);
-    if (actors.length > MAX_ACTORS) problems.add('', `At most ${MAX_ACTORS} actors are supported; found ${actors.length}.`);
-  }
+  if (actors && problems.count === 0) checkActorCount(actors, problems);
   if (problems.count > 0 || !actors || waves.length !== waveCount) {
     if (problems.count === 0) problems.add('', 'The upload could not be read.');
     return { ok: false, details: problems.details() };
   }
   return { ok: true, data: { format: body.format, actors, waves, covariates: actorsFile?.covariates ?? [] } };
+}
+
+// ---------- one network file ----------
+
+export interface ParsedNetworkFile {
+  actors: string[];
+  /** Row-major n*n codes: TIE_ABSENT, TIE_PRESENT, TIE_MISSING. */
+  adjacency: Uint8Array;
+}
+
+export type NetworkFileResult = { ok: true; network: ParsedNetworkFile } | { ok: false; details: DataProblemDetails };
+
+/**
+ * One network file on its own (the command line's `stats FILE`), read by exactly the rules of a wave
+ * of an upload (shared/data.ts): the same CSV reader, the same edge-list and matrix checks, the same
+ * messages. Without an actors file the actors are the labels of the file (edge list: in order of
+ * first appearance; matrix: the first row).
+ */
+export function parseNetworkFile(name: string, content: string, format: DataFormat, missingMarker = 'NA'): NetworkFileResult {
+  const problems = new ProblemList();
+  const source = readFile(name, content, problems);
+  let network: ParsedNetworkFile | null = null;
+  if (source && format === 'edgelist') {
+    const list = parseEdgeList(source, missingMarker, problems);
+    const actors = actorsInOrderOfAppearance([list]);
+    const adjacency = edgeListAdjacency(list, new Map(actors.map((a, i) => [a, i])), name, problems);
+    if (adjacency) network = { actors, adjacency };
+  } else if (source) {
+    const matrix = parseMatrix(source, missingMarker, problems);
+    if (matrix) network = { actors: matrix.labels, adjacency: matrix.cells };
+  }
+  if (network && problems.count === 0) checkActorCount(network.actors, problems);
+  if (problems.count > 0 || !network) {
+    if (problems.count === 0) problems.add(name, 'The file could not be read.');
+    return { ok: false, details: problems.details() };
+  }
+  return { ok: true, network };
 }
 
 // ---------- writing ----------

@@ -17,6 +17,7 @@ import {
   type WaveChange,
   type WaveSummary,
 } from '../../shared/data';
+import { waveChange } from '../engine/waveChange';
 import { TIE_MISSING, TIE_PRESENT, type ParsedCovariate } from './parse';
 
 /** Summary of one wave (n actors, row-major n*n codes 0/1/2). Missing pairs are left out of every ratio. */
@@ -56,22 +57,7 @@ export function summarizeWave(index: number, label: string, n: number, adjacency
 
 /** Change from wave `from` to wave `to` over the pairs observed in both. */
 export function compareWaves(from: number, to: number, n: number, a: Uint8Array, b: Uint8Array): WaveChange {
-  let created = 0;
-  let dissolved = 0;
-  let stable = 0;
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      if (i === j) continue;
-      const x = a[i * n + j];
-      const y = b[i * n + j];
-      if (x === TIE_MISSING || y === TIE_MISSING) continue;
-      if (x === TIE_PRESENT && y === TIE_PRESENT) stable++;
-      else if (y === TIE_PRESENT) created++;
-      else if (x === TIE_PRESENT) dissolved++;
-    }
-  }
-  const union = stable + created + dissolved;
-  const jaccard = union > 0 ? stable / union : null;
+  const { stable, created, dissolved, jaccard } = waveChange(n, a, b, { missing: TIE_MISSING });
   let caution: string | null = null;
   if (created + dissolved === 0) {
     caution = `No tie changed between wave ${from} and wave ${to}: this period carries no information about change, and its rate cannot be estimated.`;

@@ -23,7 +23,7 @@ import { choiceMatrix, clusterOrder, evenGrid, explainChoice, MinistepLog, TieTi
 import { deriveSeed } from '../engine/prng';
 import { NetworkState } from '../engine/state';
 import { ApiError, badRequest, conflict, notFound } from '../errors';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import { seededLayout } from '../review/layout';
 
 /** Refusals are ApiErrors with a plain message (400 bad input, 404 not here, 409 not ready); the error handler answers them. */

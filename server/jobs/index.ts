@@ -1,15 +1,8 @@
 /** The job queue's public surface. See README.md. */
 export { JOB_STATES, JobEntity, JobChunkEntity, type Job, type JobChunk, type JobState } from './entities';
 export { registerJobKind, getJobKind, registeredJobKinds, type JobKind, type ChunkPlan, type JobInfo, type ChunkContext, type RunChunk, type SyncDb } from './registry';
-export {
-  JobQueue,
-  createJobRow,
-  defaultWorkerCount,
-  enqueueNow,
-  jobQueueFor,
-  startJobQueue,
-  stopJobQueue,
-  type JobQueueOptions,
-  type JobStatus,
-} from './queue';
-export { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';
+export { JobQueue, defaultWorkerCount, type JobQueueOptions } from './queue';
+export { jobQueueFor, startJobQueue, stopJobQueue, enqueueNow } from './queues';
+export { createJobRow } from './rows';
+export type { JobStatus } from './status';
+export { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from '../db/sync';

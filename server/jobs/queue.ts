@@ -2,17 +2,21 @@
  * The embedded job queue: jobs in SQLite, chunks computed by a pool of worker threads, each finished
  * chunk stored in one transaction. A crash loses at most the chunks in flight; `start()` resumes every
  * unfinished job. See README.md for the design and for adding a job kind.
+ *
+ * This file schedules: it claims open jobs, hands chunks to the worker threads, stores their results
+ * and emits progress events. The worker threads are in ./pool.ts, the rows' SQL in ./rows.ts,
+ * the API's status shape in ./status.ts and the one queue per data source in ./queues.ts.
  */
 import { EventEmitter } from 'node:events';
 import { availableParallelism } from 'node:os';
-import { join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { Worker } from 'node:worker_threads';
 import type { DataSource } from 'typeorm';
 import type { JobState } from './entities';
-import { inSyncTransaction, inSyncTransactionNow, parseSqlDate, sqlNow, syncDb } from './db';
-import type { FromWorker, ToWorker } from './protocol';
+import { inSyncTransaction, sqlNow, syncDb } from '../db/sync';
+import { WorkerPool, type Slot, type Task } from './pool';
+import type { FromWorker } from './protocol';
 import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
+import { appendLog, claimJobRow, completeJobRow, createJobRow, endJobRow, TERMINAL } from './rows';
+import { statusFromRow, type JobStatus } from './status';
 
 export interface JobQueueOptions {
   /** Worker threads (default: WAVEFIT_WORKERS, else the number of cores). */
@@ -25,28 +29,7 @@ export interface JobQueueOptions {
   log?: (line: string) => void;
 }
 
-/** A job row as the API shows it, with live progress while it runs. */
-export interface JobStatus {
-  id: number;
-  kind: string;
-  state: JobState;
-  /** Units done: stored chunks plus the live progress of chunks in flight. */
-  progressDone: number;
-  progressTotal: number;
-  chunksDone: number;
-  chunksTotal: number;
-  attempts: number;
-  error: string | null;
-  log: string;
-  createdAt: Date;
-  startedAt: Date | null;
-  finishedAt: Date | null;
-  /** Seconds left, from this run's pace; null until a chunk has finished or when not running. */
-  secondsLeft: number | null;
-}
 
-const TERMINAL: ReadonlySet<JobState> = new Set(['done', 'failed', 'cancelled']);
-const LOG_LIMIT = 65_536;
 
 export function defaultWorkerCount(env: Record<string, string | undefined> = process.env): number {
   const raw = env.WAVEFIT_WORKERS;
@@ -58,23 +41,7 @@ export function defaultWorkerCount(env: Record<string, string | undefined> = pro
   return Math.max(1, availableParallelism());
 }
 
-interface Task {
-  taskId: number;
-  jobId: number;
-  chunkIndex: number;
-  units: number;
-  liveUnits: number;
-}
 
-interface Slot {
-  index: number;
-  worker: Worker;
-  task: Task | null;
-  contexts: Set<number>;
-  /** Set when we stop the worker on purpose (cancel, stop, idle): its exit is not a crash. */
-  stopping: boolean;
-  exited: Promise<void>;
-}
 
 interface ActiveJob {
   id: number;
@@ -93,31 +60,7 @@ interface ActiveJob {
   total: number;
 }
 
-function appendLog(db: SyncDb, jobId: number, line: string): void {
-  const stamped = `${new Date().toISOString()} ${line}\n`;
-  db.prepare(`UPDATE "jobs" SET "log" = substr("log" || ?, -${LOG_LIMIT}), "updatedAt" = ? WHERE "id" = ?`).run(stamped, sqlNow(), jobId);
-}
 
-/**
- * Insert a queued job row (synchronously, so a caller can do it inside its own transaction together
- * with its own rows). Plans the chunks first: a payload the kind refuses throws and stores nothing.
- * Call `queue.wake()` after the caller's transaction commits.
- */
-export function createJobRow(db: SyncDb, kind: string, payload: unknown): number {
-  const handler = getJobKind(kind);
-  if (!handler) throw new Error(`jobs: unknown job kind "${kind}"`);
-  const plan = handler.planChunks(payload);
-  if (plan.length === 0) throw new Error(`jobs: a ${kind} job must have at least one chunk`);
-  const units = plan.reduce((sum, p) => sum + p.units, 0);
-  const now = sqlNow();
-  const result = db
-    .prepare(
-      `INSERT INTO "jobs" ("kind", "payload", "state", "progressDone", "progressTotal", "chunksDone", "chunksTotal", "log", "attempts", "createdAt", "updatedAt")
-       VALUES (?, ?, 'queued', 0, ?, 0, ?, ?, 0, ?, ?)`,
-    )
-    .run(kind, JSON.stringify(payload), units, plan.length, `${new Date().toISOString()} queued: ${plan.length} chunks, ${units} units\n`, now, now);
-  return Number(result.lastInsertRowid);
-}
 
 export class JobQueue extends EventEmitter {
   readonly dataSource: DataSource;
@@ -125,7 +68,7 @@ export class JobQueue extends EventEmitter {
   private readonly maxChunkRetries: number;
   private readonly idleShutdownMs: number;
   private readonly report: (line: string) => void;
-  private readonly slots: (Slot | null)[];
+  private readonly pool: WorkerPool;
   private readonly active = new Map<number, ActiveJob>();
   private readonly waiters = new Map<number, ((state: JobState) => void)[]>();
   private started = false;
@@ -146,7 +89,11 @@ export class JobQueue extends EventEmitter {
     this.maxChunkRetries = options.maxChunkRetries ?? 3;
     this.idleShutdownMs = options.idleShutdownMs ?? 60_000;
     this.report = options.log ?? (() => undefined);
-    this.slots = new Array<Slot | null>(this.workerCount).fill(null);
+    this.pool = new WorkerPool(this.workerCount, {
+      message: (slot, message) => this.onMessage(slot, message),
+      exit: (slot, code) => void this.onExit(slot, code),
+      report: (line) => this.report(line),
+    });
   }
 
   private get db(): SyncDb {
@@ -175,7 +122,7 @@ export class JobQueue extends EventEmitter {
     this.stopped = true;
     if (this.idleTimer) clearTimeout(this.idleTimer);
     this.idleTimer = null;
-    await Promise.all(this.slots.map((slot) => (slot ? this.stopSlot(slot) : undefined)));
+    await Promise.all(this.pool.slots.map((slot) => (slot ? this.pool.stopSlot(slot) : undefined)));
     this.active.clear();
   }
 
@@ -199,7 +146,7 @@ export class JobQueue extends EventEmitter {
    */
   async cancel(jobId: number, reason = 'cancelled by a user'): Promise<{ cancelled: boolean; ms: number }> {
     const t0 = performance.now();
-    const cancelled = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, jobId, 'cancelled', reason));
+    const cancelled = await inSyncTransaction(this.db, (db) => endJobRow(db, jobId, 'cancelled', reason));
     if (cancelled) await this.abandon(jobId, 'cancelled');
     return { cancelled, ms: performance.now() - t0 };
   }
@@ -230,28 +177,13 @@ export class JobQueue extends EventEmitter {
     let secondsLeft: number | null = null;
     if (job && !job.ended && state === 'running') {
       let live = 0;
-      for (const slot of this.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
+      for (const slot of this.pool.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
       progressDone = Math.min(Number(row.progressTotal), progressDone + live);
       const elapsed = (performance.now() - job.sessionStart) / 1000;
       const pace = job.sessionUnits + live;
       if (pace > 0 && elapsed > 0) secondsLeft = ((Number(row.progressTotal) - progressDone) * elapsed) / pace;
     }
-    return {
-      id,
-      kind: String(row.kind),
-      state,
-      progressDone,
-      progressTotal: Number(row.progressTotal),
-      chunksDone: Number(row.chunksDone),
-      chunksTotal: Number(row.chunksTotal),
-      attempts: Number(row.attempts),
-      error: (row.error as string | null) ?? null,
-      log: String(row.log ?? ''),
-      createdAt: parseSqlDate(row.createdAt as string)!,
-      startedAt: parseSqlDate(row.startedAt as string | null),
-      finishedAt: parseSqlDate(row.finishedAt as string | null),
-      secondsLeft,
-    };
+    return statusFromRow(row, { progressDone, secondsLeft });
   }
 
   /** Resolves with the final state once the job is done, failed or cancelled. */
@@ -271,7 +203,7 @@ export class JobQueue extends EventEmitter {
    * Returns the chunk it was working on, or null when no worker was busy.
    */
   crashWorkerForTest(): { jobId: number; chunkIndex: number } | null {
-    const slot = this.slots.find((s) => s?.task);
+    const slot = this.pool.slots.find((s) => s?.task);
     if (!slot || !slot.task) return null;
     const { jobId, chunkIndex } = slot.task;
     void slot.worker.terminate();
@@ -280,7 +212,7 @@ export class JobQueue extends EventEmitter {
 
   /** Number of live worker threads (for tests and diagnostics). */
   get liveWorkers(): number {
-    return this.slots.filter((s) => s !== null).length;
+    return this.pool.live;
   }
 
   // ---------------------------------------------------------------- scheduling
@@ -329,7 +261,7 @@ export class JobQueue extends EventEmitter {
         context = await kind.loadContext(info, this.dataSource);
       } catch (error) {
         const message = error instanceof Error ? error.message : String(error);
-        await inSyncTransaction(this.db, (db) => this.endJobInDb(db, row.id, 'failed', `could not start: ${message}`));
+        await inSyncTransaction(this.db, (db) => endJobRow(db, row.id, 'failed', `could not start: ${message}`));
         this.settle(row.id, 'failed');
         continue;
       }
@@ -337,14 +269,9 @@ export class JobQueue extends EventEmitter {
         (this.db.prepare(`SELECT "chunkIndex" FROM "job_chunks" WHERE "jobId" = ?`).all(row.id) as { chunkIndex: number }[]).map((r) => r.chunkIndex),
       );
       const resumed = row.state === 'running';
-      const stillOpen = await inSyncTransaction(this.db, (db) => {
-        const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(row.id) as { state: JobState } | undefined;
-        if (!current || TERMINAL.has(current.state)) return false;
-        const now = sqlNow();
-        db.prepare(`UPDATE "jobs" SET "state" = 'running', "attempts" = "attempts" + 1, "startedAt" = coalesce("startedAt", ?), "updatedAt" = ? WHERE "id" = ?`).run(now, now, row.id);
-        appendLog(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`);
-        return true;
-      });
+      const stillOpen = await inSyncTransaction(this.db, (db) =>
+        claimJobRow(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`),
+      );
       if (!stillOpen) continue;
       const unitsDone = plan.reduce((sum, p, i) => sum + (done.has(i) ? p.units : 0), 0);
       const job: ActiveJob = {
@@ -376,53 +303,19 @@ export class JobQueue extends EventEmitter {
     for (const job of jobs) {
       for (let c = 0; c < job.plan.length; c++) {
         if (job.done.has(c) || job.busy.has(c)) continue;
-        const slot = this.idleSlot();
+        const slot = this.pool.idleSlot();
         if (!slot) return;
         this.runOn(slot, job, c);
       }
     }
   }
 
-  private idleSlot(): Slot | null {
-    for (let i = 0; i < this.slots.length; i++) {
-      const slot = this.slots[i];
-      if (slot && !slot.task && !slot.stopping) return slot;
-    }
-    for (let i = 0; i < this.slots.length; i++) {
-      if (this.slots[i] === null) return this.spawn(i);
-    }
-    return null;
-  }
 
-  private spawn(index: number): Slot {
-    const worker = new Worker(join(__dirname, 'boot.mjs'), {
-      execArgv: [],
-      workerData: { entry: pathToFileURL(join(__dirname, 'worker.ts')).href },
-    });
-    let onExit: () => void = () => undefined;
-    const exited = new Promise<void>((resolve) => {
-      onExit = resolve;
-    });
-    const slot: Slot = { index, worker, task: null, contexts: new Set(), stopping: false, exited };
-    this.slots[index] = slot;
-    worker.on('message', (message: FromWorker) => this.onMessage(slot, message));
-    worker.on('error', (error) => {
-      if (!slot.stopping) this.report(`jobs: worker ${index} failed: ${error.message}`);
-    });
-    worker.on('exit', (code) => {
-      onExit();
-      void this.onExit(slot, code);
-    });
-    return slot;
-  }
 
-  private post(slot: Slot, message: ToWorker): void {
-    slot.worker.postMessage(message);
-  }
 
   private runOn(slot: Slot, job: ActiveJob, chunkIndex: number): void {
     if (!slot.contexts.has(job.id)) {
-      this.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
+      this.pool.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
       slot.contexts.add(job.id);
     }
     const task: Task = { taskId: this.nextTaskId++, jobId: job.id, chunkIndex, units: job.plan[chunkIndex].units, liveUnits: 0 };
@@ -433,13 +326,9 @@ export class JobQueue extends EventEmitter {
       clearTimeout(this.idleTimer);
       this.idleTimer = null;
     }
-    this.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
+    this.pool.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
   }
 
-  private releaseSlot(slot: Slot): void {
-    slot.task = null;
-    slot.worker.unref();
-  }
 
   private onMessage(slot: Slot, message: FromWorker): void {
     if (message.type === 'ready') return;
@@ -454,7 +343,7 @@ export class JobQueue extends EventEmitter {
       void inSyncTransaction(this.db, (db) => appendLog(db, task.jobId, `chunk ${task.chunkIndex}: ${message.line}`)).catch(() => undefined);
       return;
     }
-    this.releaseSlot(slot);
+    this.pool.releaseSlot(slot);
     if (!job || job.ended) {
       void this.pump();
       return;
@@ -492,7 +381,7 @@ export class JobQueue extends EventEmitter {
         // Counted inside the transaction, so two chunks stored back to back cannot both miss the end.
         job.done.add(chunkIndex);
         try {
-          if (job.done.size === job.plan.length) this.completeInDb(db, job);
+          if (job.done.size === job.plan.length) completeJobRow(db, job);
         } catch (error) {
           job.done.delete(chunkIndex);
           throw error;
@@ -515,46 +404,21 @@ export class JobQueue extends EventEmitter {
     void this.pump();
   }
 
-  private completeInDb(db: SyncDb, job: ActiveJob): void {
-    job.kind.finish?.(db, job.info);
-    const now = sqlNow();
-    db.prepare(`UPDATE "jobs" SET "state" = 'done', "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(now, now, job.id);
-    appendLog(db, job.id, 'done');
-  }
 
   private async finishIfComplete(job: ActiveJob): Promise<void> {
     const finished = await inSyncTransaction(this.db, (db) => {
       const current = db.prepare(`SELECT "state" FROM "jobs" WHERE "id" = ?`).get(job.id) as { state: JobState } | undefined;
       if (!current || current.state !== 'running') return false;
-      this.completeInDb(db, job);
+      completeJobRow(db, job);
       return true;
     });
     if (finished) this.afterEnd(job, 'done');
   }
 
-  /** Marks a queued/running job as failed or cancelled; returns false if it had already ended. */
-  private endJobInDb(db: SyncDb, jobId: number, state: 'failed' | 'cancelled', reason: string): boolean {
-    const row = db.prepare(`SELECT "state", "kind", "payload", "attempts" FROM "jobs" WHERE "id" = ?`).get(jobId) as
-      | { state: JobState; kind: string; payload: string; attempts: number }
-      | undefined;
-    if (!row || TERMINAL.has(row.state)) return false;
-    const now = sqlNow();
-    db.prepare(`UPDATE "jobs" SET "state" = ?, "error" = ?, "finishedAt" = ?, "updatedAt" = ? WHERE "id" = ?`).run(
-      state,
-      state === 'failed' ? reason : null,
-      now,
-      now,
-      jobId,
-    );
-    appendLog(db, jobId, `${state}: ${reason}`);
-    const kind = getJobKind(row.kind);
-    kind?.onEnd?.(db, { id: jobId, kind: row.kind, payload: JSON.parse(row.payload), attempts: row.attempts }, state, reason);
-    return true;
-  }
 
   private async failJob(job: ActiveJob, reason: string): Promise<void> {
     if (job.ended) return;
-    const failed = await inSyncTransaction(this.db, (db) => this.endJobInDb(db, job.id, 'failed', reason));
+    const failed = await inSyncTransaction(this.db, (db) => endJobRow(db, job.id, 'failed', reason));
     this.report(`jobs: job ${job.id} failed: ${reason}`);
     if (failed) await this.abandon(job.id, 'failed');
     else void this.pump();
@@ -566,11 +430,11 @@ export class JobQueue extends EventEmitter {
     if (job) this.afterEnd(job, state);
     else this.settle(jobId, state);
     const stops: Promise<void>[] = [];
-    for (const slot of this.slots) {
+    for (const slot of this.pool.slots) {
       if (!slot) continue;
-      if (slot.task?.jobId === jobId) stops.push(this.stopSlot(slot));
+      if (slot.task?.jobId === jobId) stops.push(this.pool.stopSlot(slot));
       else if (slot.contexts.has(jobId)) {
-        this.post(slot, { type: 'forget', jobId });
+        this.pool.post(slot, { type: 'forget', jobId });
         slot.contexts.delete(jobId);
       }
     }
@@ -581,9 +445,9 @@ export class JobQueue extends EventEmitter {
   private afterEnd(job: ActiveJob, state: JobState): void {
     job.ended = true;
     this.active.delete(job.id);
-    for (const slot of this.slots) {
+    for (const slot of this.pool.slots) {
       if (slot && slot.contexts.has(job.id) && !slot.stopping) {
-        this.post(slot, { type: 'forget', jobId: job.id });
+        this.pool.post(slot, { type: 'forget', jobId: job.id });
         slot.contexts.delete(job.id);
       }
     }
@@ -597,15 +461,9 @@ export class JobQueue extends EventEmitter {
     for (const resolve of list ?? []) resolve(state);
   }
 
-  private async stopSlot(slot: Slot): Promise<void> {
-    slot.stopping = true;
-    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
-    await slot.worker.terminate();
-    await slot.exited;
-  }
 
   private async onExit(slot: Slot, code: number): Promise<void> {
-    if (this.slots[slot.index] === slot) this.slots[slot.index] = null;
+    this.pool.vacate(slot);
     const task = slot.task;
     slot.task = null;
     if (slot.stopping || this.stopped) return;
@@ -630,52 +488,14 @@ export class JobQueue extends EventEmitter {
 
   private scheduleIdleShutdown(): void {
     if (this.stopped || this.idleTimer) return;
-    const busy = this.slots.some((s) => s?.task) || this.active.size > 0;
-    const live = this.slots.some((s) => s !== null);
+    const busy = this.pool.slots.some((s) => s?.task) || this.active.size > 0;
+    const live = this.pool.slots.some((s) => s !== null);
     if (busy || !live) return;
     this.idleTimer = setTimeout(() => {
       this.idleTimer = null;
-      const stillIdle = !this.slots.some((s) => s?.task) && this.active.size === 0;
-      if (stillIdle) for (const slot of this.slots) if (slot) void this.stopSlot(slot);
+      const stillIdle = !this.pool.slots.some((s) => s?.task) && this.active.size === 0;
+      if (stillIdle) for (const slot of this.pool.slots) if (slot) void this.pool.stopSlot(slot);
     }, this.idleShutdownMs);
     this.idleTimer.unref();
   }
-}
-
-// ---------------------------------------------------------------- one queue per data source
-
-const queues = new WeakMap<DataSource, JobQueue>();
-
-/**
- * The queue of a data source (created on first use, not started). Routes call this to enqueue; the
- * server's main.ts calls `startJobQueue` at boot so unfinished jobs resume.
- */
-export function jobQueueFor(dataSource: DataSource, options?: JobQueueOptions): JobQueue {
-  let queue = queues.get(dataSource);
-  if (!queue) {
-    queue = new JobQueue(dataSource, options);
-    queues.set(dataSource, queue);
-  }
-  return queue;
-}
-
-/** Creates (if needed) and starts the queue of a data source; resumes unfinished jobs. */
-export async function startJobQueue(dataSource: DataSource, options?: JobQueueOptions): Promise<JobQueue> {
-  const queue = jobQueueFor(dataSource, options);
-  await queue.start();
-  return queue;
-}
-
-/** Stops the queue of a data source (workers terminated; unfinished jobs resume at the next start). */
-export async function stopJobQueue(dataSource: DataSource): Promise<void> {
-  const queue = queues.get(dataSource);
-  if (queue) {
-    await queue.stop();
-    queues.delete(dataSource);
-  }
-}
-
-/** Synchronous form of createJobRow in its own transaction (for scripts). */
-export function enqueueNow(dataSource: DataSource, kind: string, payload: unknown): number {
-  return inSyncTransactionNow(syncDb(dataSource), (db) => createJobRow(db, kind, payload));
 }

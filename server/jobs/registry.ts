@@ -2,11 +2,11 @@
  * The job kind registry: what each kind of job does on the main thread (plan, store, finish) and
  * which module its workers run. Kinds register once at import time (see README.md).
  */
-import type BetterSqlite3 from 'better-sqlite3';
 import type { DataSource } from 'typeorm';
+import type { SyncDb } from '../db/sync';
 
 /** The synchronous database handle a kind writes with, inside the queue's transaction. */
-export type SyncDb = BetterSqlite3.Database;
+export type { SyncDb };
 
 export interface ChunkPlan<Chunk> {
   /** What the worker needs besides the job's context (structured-cloneable, small). */

@@ -9,7 +9,7 @@ import type { DataSource } from 'typeorm';
 import type { FitResults } from '../../shared/models';
 import { loadStudyData } from '../data/store';
 import { registerJobKind, type SyncDb } from '../jobs/registry';
-import { sqlNow } from '../jobs/db';
+import { sqlNow } from '../db/sync';
 import type { FitContext, FitJobPayload, StoredFitPlan } from './context';
 import { fitPeriods, type StoredSpec } from './modelData';
 import { fitWorkPlan } from './progress';

@@ -12,44 +12,12 @@ import {
   type ParsedStartFitBody,
 } from '../../shared/models';
 import { currentStudy, currentUser } from '../auth/context';
-import { ApiError, idParam, notFound, validate } from '../errors';
+import { idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
-import {
-  ModelInputError,
-  cancelFit,
-  checkModel,
-  createModel,
-  deleteModel,
-  fitDetail,
-  getFitRow,
-  getModelRow,
-  listFits,
-  listModels,
-  modelDetail,
-  startFit,
-  updateModel,
-  type ModelUpdate,
-} from './service';
-
-function toApiError(error: unknown): unknown {
-  if (error instanceof ModelInputError) {
-    const code = (error.code === 'conflict' ? 'fit_not_running' : error.code);
-    return new ApiError(error.status, code, error.message, error.details);
-  }
-  return error;
-}
-
-/** Runs a handler and turns ModelInputError into the API's error shape. */
-function guarded(handler: (req: Request, res: import('express').Response) => Promise<void> | void) {
-  return async (req: Request, res: import('express').Response) => {
-    try {
-      await handler(req, res);
-    } catch (error) {
-      throw toApiError(error);
-    }
-  };
-}
+import { cancelFit, fitDetail, getFitRow, listFits, startFit } from './fits';
+import { getModelRow } from './rows';
+import { checkModel, createModel, deleteModel, listModels, modelDetail, updateModel, type ModelUpdate } from './service';
 
 export function modelsRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
@@ -80,10 +48,10 @@ export function modelsRouter(deps: RouteDeps): Router {
     auth.requireUser,
     auth.requireStudyRole('read'),
     validate(modelSpecBodySchema),
-    guarded(async (req, res) => {
+    async (req, res) => {
       const { study } = currentStudy(req);
       res.json({ notes: await checkModel(dataSource, study.id, req.body as ParsedModelSpecBody) });
-    }),
+    },
   );
 
   router.post(
@@ -91,20 +59,20 @@ export function modelsRouter(deps: RouteDeps): Router {
     auth.requireUser,
     auth.requireStudyRole('editModels'),
     validate(modelSpecBodySchema),
-    guarded(async (req, res) => {
+    async (req, res) => {
       const { study } = currentStudy(req);
       const id = await createModel(dataSource, study.id, currentUser(req).id, req.body as ParsedModelSpecBody);
       res.status(201).json({ model: await modelDetail(dataSource, getModelRow(dataSource, study.id, id)!) });
-    }),
+    },
   );
 
   router.get(
     '/:studyId/models/:modelId',
     auth.requireUser,
     auth.requireStudyRole('read'),
-    guarded(async (req, res) => {
+    async (req, res) => {
       res.json({ model: await modelDetail(dataSource, loadModel(req)) });
-    }),
+    },
   );
 
   router.patch(
@@ -112,21 +80,21 @@ export function modelsRouter(deps: RouteDeps): Router {
     auth.requireUser,
     auth.requireStudyRole('editModels'),
     validate(modelUpdateBodySchema),
-    guarded(async (req, res) => {
+    async (req, res) => {
       const row = loadModel(req);
       await updateModel(dataSource, row, req.body as ModelUpdate);
       res.json({ model: await modelDetail(dataSource, getModelRow(dataSource, row.studyId, row.id)!) });
-    }),
+    },
   );
 
   router.delete(
     '/:studyId/models/:modelId',
     auth.requireUser,
     auth.requireStudyRole('editModels'),
-    guarded(async (req, res) => {
+    async (req, res) => {
       await deleteModel(dataSource, loadModel(req));
       res.status(204).end();
-    }),
+    },
   );
 
   router.get('/:studyId/models/:modelId/fits', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
@@ -139,11 +107,11 @@ export function modelsRouter(deps: RouteDeps): Router {
     auth.requireUser,
     auth.requireStudyRole('runBatches'),
     validate(startFitBodySchema),
-    guarded(async (req, res) => {
+    async (req, res) => {
       const model = loadModel(req);
       const fitId = await startFit(dataSource, model, currentUser(req).id, req.body as ParsedStartFitBody);
       res.status(201).json({ fit: fitDetail(dataSource, getFitRow(dataSource, model.studyId, model.id, fitId)!) });
-    }),
+    },
   );
 
   router.get('/:studyId/models/:modelId/fits/:fitId', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
@@ -155,11 +123,11 @@ export function modelsRouter(deps: RouteDeps): Router {
     '/:studyId/models/:modelId/fits/:fitId/cancel',
     auth.requireUser,
     auth.requireStudyRole('runBatches'),
-    guarded(async (req, res) => {
+    async (req, res) => {
       const { model, row } = loadFit(req);
       await cancelFit(dataSource, row);
       res.json({ fit: fitDetail(dataSource, getFitRow(dataSource, model.studyId, model.id, row.id)!) });
-    }),
+    },
   );
 
   return router;

@@ -10,8 +10,7 @@
  */
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
-import { parseSqlDate, sqlNow, syncDb } from '../jobs/db';
-import type { SyncDb } from '../jobs/registry';
+import { parseSqlDate, sqlNow, syncDb, type SyncDb } from '../db/sync';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { wanting, type PreferenceKey } from './preferences';
 import { batchFailedMail, batchFinishedMail, reportSignedMail, reviewRequestedMail } from './templates';

@@ -3,8 +3,7 @@
  * written with the synchronous database handle.
  */
 import { DEFAULT_PREFERENCES, type NotificationPreferences } from '../../shared/review';
-import type { SyncDb } from '../jobs/registry';
-import { sqlNow } from '../jobs/db';
+import { sqlNow, type SyncDb } from '../db/sync';
 
 export type PreferenceKey = keyof NotificationPreferences;
 

@@ -1,4 +1,5 @@
 /** The texts of Wavefit's notification e-mails (plain text first; the HTML repeats it with a link). */
+import { palette } from '../../shared/palette';
 import type { MailMessage } from '../mail/mailer';
 
 function escapeHtml(text: string): string {
@@ -12,7 +13,7 @@ function message(to: string, subject: string, paragraphs: string[], link: { href
   const html = [
     ...paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`),
     `<p><a href="${escapeHtml(link.href)}">${escapeHtml(link.words)}</a></p>`,
-    `<p style="color:#5B6475">${escapeHtml(footer)}</p>`,
+    `<p style="color:${palette.muted}">${escapeHtml(footer)}</p>`,
   ].join('\n');
   return { to, subject, text, html };
 }

@@ -11,10 +11,12 @@ import type { DataSource } from 'typeorm';
 import type { ReportJson, ReportStatisticJson } from '../../shared/review';
 import { parameterLabel } from '../../shared/models';
 import type { LoadedBatch } from '../batches/service';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import { compareItems, fitInfo } from '../review/compare';
 import type { GofCache } from '../review/gofData';
-import { changedSince, commentsOf, requireDone, signoffsOf, verdictCounts, verdictsOf } from '../review/service';
+import { commentsOf } from '../review/comments';
+import { changedSince, requireDone, verdictCounts, verdictsOf } from '../review/service';
+import { signoffsOf } from '../review/signoffs';
 
 const ROOT = resolve(__dirname, '../..');
 

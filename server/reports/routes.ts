@@ -1,20 +1,23 @@
 /**
  * The fit report of a batch (contract in shared/review.ts): its status and sign-offs, the lead's
- * sign-off (ability signReport; recorded with who and when, and the team is notified), and the
+ * sign-off (ability signReport; recorded with who and when, and the team is notified; a report with
+ * concerns (non-converged fit, few chains) needs an acknowledged reason, see signoffGuard.ts), and the
  * exports: PDF (pdfkit, fonts embedded), CSV and JSON. Mounted at /api.
  */
 import { Router, type Request } from 'express';
 import { can } from '../../shared/api';
-import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/review';
+import { parseIdList, signoffBodySchema, type ReportStatus, type SignoffBody } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
-import { syncDb } from '../jobs/db';
+import { syncDb } from '../db/sync';
 import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
-import { guarded, type ReviewRouter } from '../review/routes';
-import { changedSince, loadReviewBatch, signOff, signoffsOf, verdictCounts } from '../review/service';
+import type { ReviewRouter } from '../review/routes';
+import { changedSince, loadReviewBatch, requireDone, verdictCounts } from '../review/service';
+import { signOff, signoffsOf } from '../review/signoffs';
 import { estimatesCsv, gofCsv } from './csv';
 import { reportPdf } from './pdf';
+import { acknowledgementFor, concernsOf } from './signoffGuard';
 import { buildReport } from './reportData';
 
 function compareIds(req: Request): number[] {
@@ -38,7 +41,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
   const member = (ability: Parameters<typeof auth.requireStudyRole>[0]) => [auth.requireUser, auth.requireStudyRole(ability)];
   const batchOf = (req: Request) => loadReviewBatch(dataSource, currentStudy(req).study.id, idParam(req, 'batchId', 'Batch'));
 
-  router.get(`${B}/report`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report`, ...member('read'), (req, res) => {
     const batch = batchOf(req);
     const db = syncDb(dataSource);
     const signoffs = signoffsOf(db, batch.row.id);
@@ -51,22 +54,28 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       signoffs,
       changedSinceSignoff: changedSince(db, batch.row.id, signoffs[0]),
       canSign: currentUser(req).isAdmin || can(role, 'signReport'),
+      concerns: concernsOf(dataSource, batch),
     };
     res.json(body);
-  }));
+  });
 
-  router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), guarded(async (req, res) => {
-    const signoff = await signOff(dataSource, batchOf(req), currentUser(req), (req.body as { note: string }).note);
+  router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), async (req, res) => {
+    const body = req.body as SignoffBody & { note: string };
+    const batch = batchOf(req);
+    requireDone(batch);
+    // A non-converged fit or a batch with few chains is signed off only with an acknowledged reason.
+    const acknowledgement = acknowledgementFor(concernsOf(dataSource, batch), body);
+    const signoff = await signOff(dataSource, batch, currentUser(req), body.note, acknowledgement);
     await review.notifier.flush();
     res.status(201).json({ signoff });
-  }));
+  });
 
-  router.get(`${B}/report.json`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report.json`, ...member('read'), (req, res) => {
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
     res.set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, 'json')}"`).json(report);
-  }));
+  });
 
-  router.get(`${B}/report.csv`, ...member('read'), guarded((req, res) => {
+  router.get(`${B}/report.csv`, ...member('read'), (req, res) => {
     const table = req.query.table === undefined || req.query.table === '' ? 'gof' : String(req.query.table);
     if (table !== 'gof' && table !== 'estimates') throw badRequest('The table is "gof" (envelopes, p-values and verdicts) or "estimates".');
     const report = buildReport(dataSource, gof, batchOf(req), []);
@@ -75,9 +84,9 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       .type('text/csv; charset=utf-8')
       .set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, table === 'gof' ? 'csv' : 'estimates.csv')}"`)
       .send(table === 'gof' ? gofCsv(report) : estimatesCsv(report));
-  }));
+  });
 
-  router.get(`${B}/report.pdf`, ...member('read'), guarded(async (req, res) => {
+  router.get(`${B}/report.pdf`, ...member('read'), async (req, res) => {
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
     const pdf = await reportPdf(report);
     res
@@ -85,7 +94,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       .type('application/pdf')
       .set('Content-Disposition', `${req.query.download === '1' ? 'attachment' : 'inline'}; filename="${fileName(report.study.name, report.batch.id, 'pdf')}"`)
       .send(pdf);
-  }));
+  });
 
   return router;
 }

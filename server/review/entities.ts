@@ -2,7 +2,7 @@
  * Review board tables: one Verdict per card (statistic x period of a batch) with its version for
  * optimistic concurrency, every change kept in VerdictHistory, comment threads, review requests,
  * report sign-offs, and each user's notification preferences. Rows are written with the synchronous
- * better-sqlite3 handle (server/jobs/db.ts) so a verdict and its history commit together.
+ * better-sqlite3 handle (server/db/sync.ts) so a verdict and its history commit together.
  */
 import { EntitySchema } from 'typeorm';
 
@@ -195,6 +195,8 @@ export interface ReportSignoffRow {
   /** VerdictCounts JSON at signing. */
   counts: string;
   signedAt: Date;
+  /** SignoffAcknowledgement JSON when signed off despite concerns; null otherwise. */
+  acknowledgement: string | null;
 }
 
 export const ReportSignoffEntity = new EntitySchema<ReportSignoffRow & { study?: unknown; batch?: unknown; signedBy?: unknown }>({
@@ -209,6 +211,7 @@ export const ReportSignoffEntity = new EntitySchema<ReportSignoffRow & { study?:
     note: { type: 'text', default: '' },
     counts: { type: 'text' },
     signedAt: { type: 'datetime', createDate: true },
+    acknowledgement: { type: 'text', nullable: true },
   },
   relations: {
     study: studyFk('report_signoffs'),

@@ -8,7 +8,8 @@ import type { DataSource } from 'typeorm';
 import { DEFAULT_COVERAGES } from '../../shared/batches';
 import { chartScaleOf, type EnvelopeChartDto } from '../../shared/review';
 import { layoutOffsets } from '../batches/layout';
-import { gofOf, periodMatrix, statisticSample, type LoadedBatch } from '../batches/service';
+import { gofOf, periodMatrix, statisticSample } from '../batches/gof';
+import type { LoadedBatch } from '../batches/service';
 
 /** Sample standard deviation (n - 1) of each column of a rows x cols matrix. */
 export function columnSd(sample: { rows: number; cols: number; data: Float64Array }): number[] {

@@ -16,7 +16,7 @@ import { periodNetworks } from '../data/periods';
 import type { LoadedBatch } from '../batches/service';
 import { loadStudyData } from '../data/store';
 import { deriveSeed, streamFor } from '../engine/prng';
-import { ReviewError } from './service';
+import { ApiError } from '../errors';
 
 /** Positions in [0, 1] x [0, 1] for n nodes and directed ties (treated as undirected springs). */
 export function seededLayout(n: number, ties: Array<[number, number]>, seed: number, iterations = 300): Array<[number, number]> {
@@ -46,14 +46,14 @@ export class LayoutCache {
 
   async get(dataSource: DataSource, batch: LoadedBatch, period: number): Promise<ConsensusLayoutDto> {
     if (!batch.summary.periods.includes(period)) {
-      throw new ReviewError(404, 'not_found', `This batch simulated period${batch.summary.periods.length > 1 ? 's' : ''} ${batch.summary.periods.join(', ')}; there is no period ${period} in it.`);
+      throw new ApiError(404, 'not_found', `This batch simulated period${batch.summary.periods.length > 1 ? 's' : ''} ${batch.summary.periods.join(', ')}; there is no period ${period} in it.`);
     }
     const key = `${batch.row.id}:${period}`;
     const hit = this.entries.get(key);
     if (hit) return hit;
     const data = await loadStudyData(dataSource, batch.row.studyId);
     const n = data.actors.length;
-    if (n !== batch.row.actorCount) throw new ReviewError(409, 'data_in_use', 'The study data changed after this batch was run.');
+    if (n !== batch.row.actorCount) throw new ApiError(409, 'data_in_use', 'The study data changed after this batch was run.');
     const net = periodNetworks(data)[period - 1];
     const observed: Array<[number, number]> = [];
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (i !== j && net.compareMask[i * n + j] && net.end[i * n + j]) observed.push([i, j]);

@@ -18,7 +18,7 @@ import { jobQueueFor, stopJobQueue } from '../../server/jobs';
 import { runPython } from '../gof/python';
 import { REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 
-/** The demo study's own generating model (server/db/demo-data.ts), entered by hand. */
+/** The demo study's own generating model (server/demo/waves.ts), entered by hand. */
 const DEMO_MODEL = {
   rates: [2.5, 2.5],
   effects: [

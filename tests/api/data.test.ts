@@ -6,7 +6,7 @@
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_CREW } from '../../server/db/demo-data';
+import { DEMO_CREW } from '../../server/demo/waves';
 import { parseUpload } from '../../server/data/parse';
 import { loadStudyData, replaceStudyData } from '../../server/data/store';
 import { dataUploadBodySchema, type DataUploadBody } from '../../shared/data';

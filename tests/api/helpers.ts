@@ -10,7 +10,7 @@ import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app';
 import { testConfig, type Config } from '../../server/config';
 import { openDataSource } from '../../server/db/dataSource';
-import { DEMO_PASSWORD, seedDemo, type SeedResult } from '../../server/db/seed';
+import { DEMO_PASSWORD, seedDemo, type SeedResult } from '../../server/demo/seed';
 import { createOutboxMailer, type OutboxMailer } from '../../server/mail/mailer';
 
 export interface TestApp {

@@ -4,7 +4,7 @@
  * Support"), migrations can be undone and redone, and the demo seed is idempotent.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemo } from '../../server/db/seed';
+import { seedDemo } from '../../server/demo/seed';
 import { makeTestApp, type TestApp } from './helpers';
 
 let t: TestApp;

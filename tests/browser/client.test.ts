@@ -3,11 +3,11 @@
  * database: sign-in (wrong password and right), the studies table, a study, its team, layout at
  * a phone and a desktop width, and no request to any outside host (fonts are shipped).
  *
- * Expected values come from outside the client: the demo seed (server/db/seed.ts: users,
+ * Expected values come from outside the client: the demo seed (server/demo/seed.ts: users,
  * study name, password) and the API's own answers read through HTTP, never from our screenshots.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { DEMO_PASSWORD, DEMO_STUDY_NAME, DEMO_USERS } from '../../server/db/seed';
+import { DEMO_PASSWORD, DEMO_STUDY_NAME, DEMO_USERS } from '../../server/demo/seed';
 import { openBrowser, screenshot, signIn, startServer, type ViewportName, type WavefitServer } from './harness';
 
 const LEAD = DEMO_USERS.find((u) => u.role === 'lead')!;
@@ -36,6 +36,8 @@ describe.each<ViewportName>(['phone', 'desktop'])('the lead at the %s width', (v
       const { page } = b;
       await page.goto(server.baseUrl + '/');
       await page.waitForURL(/\/sign-in/);
+      // Each route's code arrives as its own chunk (async routes), so wait for the page to render.
+      await page.getByRole('heading', { name: 'Sign in' }).waitFor();
       await expect(page.getByRole('heading', { name: 'Sign in' }).isVisible()).resolves.toBe(true);
       await screenshot(page, 'sign-in', viewport);
 

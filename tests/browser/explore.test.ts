@@ -11,9 +11,9 @@
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ChoiceResponse, ReplayResponse } from '../../shared/explore';
-import { DEMO_PASSWORD } from '../../server/db/seed';
+import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
-import { seedDemoResults, type DemoResults } from '../../server/review/demo';
+import { seedDemoResults, type DemoResults } from '../../server/demo/results';
 import { openBrowser, screenshot, signIn, startServer, type WavefitServer } from './harness';
 
 let server: WavefitServer;

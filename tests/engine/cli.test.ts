@@ -1,7 +1,8 @@
 /**
- * Checks of the command line (server/cli) and of the network CSV parser it uses
- * (server/engine/io/csv-network.ts): good files give the statistics of METHODS.md 7d, bad files and bad
- * specifications exit non-zero with a clear message.
+ * Checks of the command line (server/cli) and of the network file reader it shares with the upload
+ * (server/data/parse.ts parseNetworkFile, server/data/csv.ts): good files give the statistics of
+ * METHODS.md 7d, bad files and bad specifications exit non-zero with a clear message, and the command
+ * line and the upload accept and refuse the same files.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
@@ -9,7 +10,8 @@ import { tmpdir } from 'node:os';
 import * as path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli, type CliIO } from '../../server/cli/commands';
-import { parseNetworkCsv } from '../../server/engine/io/csv-network';
+import { parseNetworkFile, parseUpload } from '../../server/data/parse';
+import { dataUploadBodySchema, type DataFormat } from '../../shared/data';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'wavefit-cli-'));
 function file(name: string, text: string): string {
@@ -52,23 +54,23 @@ describe('cli stats', () => {
   });
 
   const bad: [string, string, RegExp][] = [
-    ['self-tie in an edge list', 'sender,receiver\nMaren,Maren\n', /line 2: self-tie "Maren" -> "Maren"/],
-    ['self-tie on a matrix diagonal', ',a,b\na,1,0\nb,1,0\n', /line 2: self-tie on the diagonal for actor "a"/],
-    ['a value that is not 0/1', ',a,b\na,0,2\nb,1,0\n', /value "2" in row "a", column "b" is not 0 or 1/],
-    ['a missing value', ',a,b\na,0,NA\nb,1,0\n', /value "NA" in row "a", column "b" is not 0 or 1/],
-    ['too few rows', ',a,b,c\na,0,1,0\nb,1,0,0\n', /the matrix is not square: 3 actor columns but 2 actor rows/],
-    ['a short row', ',a,b,c\na,0,1\nb,1,0,0\nc,0,0,0\n', /the matrix is not square: row "a" has 2 values for 3 actors/],
-    ['an unknown row label', ',a,b\na,0,1\nz,1,0\n', /row label "z" is not among the column labels/],
-    ['a three-cell edge row', 'x,y\nx\n', /line 2: an edge list row has two cells/],
-    ['an empty file', '', /the file is empty/],
-    ['an unclosed quote', 'a,"b\n', /a quoted cell is not closed/],
+    ['self-tie in an edge list', 'sender,receiver\nMaren,Maren\n', /line 2, column 2: Self-tie: "Maren" names themself/],
+    ['self-tie on a matrix diagonal', ',a,b\na,1,0\nb,1,0\n', /line 2, column 2: Self-tie: the diagonal cell of "a" is 1/],
+    ['a value that is not 0/1', ',a,b\na,0,2\nb,1,0\n', /line 2, column 3: The value "2" is not 0, 1 or the missing marker "NA"/],
+    ['a missing value', ',a,b\na,0,NA\nb,1,0\n', /1 pair is missing \("NA"\); the command line computes statistics of complete networks only/],
+    ['too few rows', ',a,b,c\na,0,1,0\nb,1,0,0\n', /The matrix is not square: the first row names 3 actors but 2 rows follow/],
+    ['a short row', ',a,b,c\na,0,1\nb,1,0,0\nc,0,0,0\n', /line 2: The matrix is not square: this row has 2 values for 3 columns/],
+    ['an unknown row label', ',a,b\na,0,1\nz,1,0\n', /line 3, column 1: The row label "z" differs from the column label "b"/],
+    ['a one-cell edge row', 'x,y\nx\n', /line 2: Expected "sender,receiver" \(and optionally a value\); this line has 1 field/],
+    ['an empty file', '', /The file is empty/],
+    ['an unclosed quote', 'a,"b\n', /line 1, column 2: A quoted field is not closed/],
   ];
   for (const [what, text, message] of bad) {
     it(`exits non-zero with a clear message for ${what}`, () => {
       const r = run(['stats', file(`bad-${what.replace(/\W+/g, '-')}.csv`, text)]);
       expect(r.code).toBe(1);
       expect(r.out).toBe('');
-      expect(r.err).toMatch(/^wavefit cli: error: csv-network: /);
+      expect(r.err).toMatch(/^wavefit cli: error: \S+\.csv( line \d+(, column \d+)?)?: /);
       expect(r.err).toMatch(message);
     });
   }
@@ -88,7 +90,7 @@ describe('cli stats', () => {
     const r = spawnSync(tsx, [main, 'stats', file('selftie.csv', ',a,b\na,0,1\nb,0,1\n')], { encoding: 'utf8' });
     expect(r.status).toBe(1);
     expect(r.stdout).toBe('');
-    expect(r.stderr).toMatch(/csv-network: line 3: self-tie on the diagonal for actor "b"/);
+    expect(r.stderr).toMatch(/selftie\.csv line 3, column 3: Self-tie: the diagonal cell of "b" is 1/);
   });
 });
 
@@ -156,20 +158,56 @@ describe('cli simulate', () => {
   });
 });
 
-describe('csv-network parser', () => {
-  it('reads quoted labels, tabs, a byte-order mark and Windows line ends, and warns on duplicate ties', () => {
-    const p = parseNetworkCsv('\ufefffrom\tto\r\n"Harbour, Jo"\tKai\r\nKai\t"Harbour, Jo"\r\nKai\t"Harbour, Jo"\r\n');
-    expect(p.actors).toEqual(['Harbour, Jo', 'Kai']);
-    expect(Array.from(p.adj)).toEqual([0, 1, 1, 0]);
-    expect(p.warnings).toHaveLength(1);
+describe('one network reader for the upload and the command line', () => {
+  it('reads quoted labels, tabs, a byte-order mark and Windows line ends (RFC 4180 quoting, Shafranovich 2005)', () => {
+    const r = parseNetworkFile('crew.csv', '\ufefffrom\tto\r\n"Harbour, Jo"\tKai\r\nKai\t"Harbour, Jo"\r\n', 'edgelist');
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect(r.network.actors).toEqual(['Harbour, Jo', 'Kai']);
+    expect(Array.from(r.network.adjacency)).toEqual([0, 1, 1, 0]);
   });
 
-  it('orders actors by a given list (isolates included) and refuses labels outside it', () => {
-    const p = parseNetworkCsv('a,b\n', { actors: ['c', 'b', 'a'] });
-    expect(p.n).toBe(3);
-    expect(p.adj[2 * 3 + 1]).toBe(1);
-    expect(() => parseNetworkCsv('a,z\n', { actors: ['a', 'b'] })).toThrow(/csv-network: line 1: actor "z" is not one of the study's actors/);
-    const m = parseNetworkCsv(',a,b\na,0,1\nb,0,0\n', { actors: ['b', 'a'] });
-    expect(Array.from(m.adj)).toEqual([0, 0, 1, 0]);
+  // Each file is read once by the command line (stats, told the format) and once as both waves of an
+  // upload; either both accept it (with the same actors and ties) or both refuse it.
+  const files: Array<[string, DataFormat, string, boolean]> = [
+    ['an edge list with a header', 'edgelist', edgeCsv, true],
+    ['an edge list without a header, semicolons', 'edgelist', 'Maren;Tobias\nTobias;Ines\n', true],
+    ['an edge list with a value column', 'edgelist', 'a,b,1\nb,c,0\nc,a,1\n', true],
+    ['quoted labels with a comma and a quote', 'edgelist', '"Hale, ""Mo""",Kai\nKai,"Hale, ""Mo"""\n', true],
+    ['a matrix with an empty corner', 'matrix', matrixCsv, true],
+    ['a matrix with a named corner, tab separated', 'matrix', 'id\ta\tb\na\t0\t1\nb\t1\t0\n', true],
+    ['a duplicated tie', 'edgelist', 'a,b\na,b\n', false],
+    ['a self-tie', 'edgelist', 'a,a\na,b\n', false],
+    ['a quoted field over two lines', 'edgelist', 'a,"b\nc"\nb,a\n', false],
+    ['text after a closing quote', 'edgelist', 'a,"b" x\nb,a\n', false],
+    ['matrix rows in another order than the columns', 'matrix', ',a,b\nb,0,1\na,1,0\n', false],
+    ['a matrix value that is not 0/1', 'matrix', ',a,b\na,0,x\nb,1,0\n', false],
+    ['one actor only', 'matrix', ',a\na,0\n', false],
+    ['an empty file', 'edgelist', '\n\n', false],
+  ];
+  for (const [what, format, text, accepted] of files) {
+    it(`${accepted ? 'accepts' : 'refuses'} ${what} in both`, () => {
+      const cli = run(['stats', file(`same-${what.replace(/\W+/g, '-')}.csv`, text), '--format', format]);
+      const upload = parseUpload(
+        dataUploadBodySchema.parse({ format, waves: [{ label: 'w1', content: text }, { label: 'w2', content: text }] }),
+      );
+      expect(cli.code === 0, cli.err).toBe(accepted);
+      expect(upload.ok, JSON.stringify(upload.ok ? null : upload.details)).toBe(accepted);
+      if (upload.ok) {
+        const json = JSON.parse(cli.out);
+        expect(json.actors).toEqual(upload.data.actors);
+        expect(json.ties).toBe(upload.data.waves[0].adjacency.reduce((s, v) => s + v, 0));
+      } else {
+        // the command line names the first problem of the upload's list
+        expect(cli.err).toContain(upload.details.problems[0].message);
+      }
+    });
+  }
+
+  it('says so when a file has missing pairs, which the upload accepts and the command line does not', () => {
+    const text = ',a,b\na,0,NA\nb,1,0\n';
+    expect(parseNetworkFile('m.csv', text, 'matrix').ok).toBe(true);
+    expect(run(['stats', file('missing.csv', text)]).err).toMatch(/missing \("NA"\); the command line computes statistics of complete networks only/);
+    expect(run(['stats', file('missing-x.csv', ',a,b\na,0,x\nb,1,0\n'), '--missing', 'x']).err).toMatch(/missing \("x"\)/);
   });
 });

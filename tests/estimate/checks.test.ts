@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { buildEffects } from '../../server/engine/effects';
 import { checkModelData, type ParameterPlan } from '../../server/engine/estimate';
+import { JACCARD_CAUTION } from '../../shared/data';
 
 const n = 5;
 function net(edges: [number, number][]): Uint8Array {
@@ -60,5 +61,24 @@ describe('checkModelData', () => {
     const notes = checkModelData([{ start: net([]), end: net(all.slice(0, 19)), effects: densityOnly }], [est], [est]);
     expect(notes.find((x) => x.code === 'large_change')?.severity).toBe('warning');
     expect(notes.some((x) => x.severity === 'error')).toBe(false);
+  });
+
+  it('warns about low turnover overlap below the shared Jaccard threshold, not on it (ties counted by hand)', () => {
+    // Snijders, van de Bunt & Steglich (2010): a wave-to-wave Jaccard index below about 0.2 is a
+    // caution (from memory); the threshold is the one the data summaries use.
+    expect(JACCARD_CAUTION).toBe(0.2);
+    const densityOnly = buildEffects([{ id: 'density' }]);
+    const start = net([[0, 1], [1, 2], [2, 3]]);
+    const low = (end: Uint8Array) =>
+      checkModelData([{ start, end, effects: densityOnly }], [est], [est]).filter((x) => x.code === 'low_jaccard');
+    // 1 stable of 5 in either wave: J = 0.2 exactly, no warning.
+    expect(low(net([[0, 1], [3, 4], [4, 0]]))).toHaveLength(0);
+    // 1 stable of 6: J = 1/6, a warning that names the threshold.
+    const below = low(net([[0, 1], [3, 4], [4, 0], [0, 2]]));
+    expect(below).toHaveLength(1);
+    expect(below[0]).toMatchObject({ severity: 'warning', path: 'rates.0' });
+    expect(below[0].message).toMatch(/Only 17% of the ties .* below about 20%/);
+    // 2 stable of 5: J = 0.4, no warning.
+    expect(low(net([[0, 1], [1, 2], [4, 0], [0, 2]]))).toHaveLength(0);
   });
 });

@@ -14,7 +14,7 @@ import {
   symmetricEigen,
   symmetricPseudoInverse,
   type Matrix,
-} from '../../server/engine/estimate/linalg';
+} from '../../server/engine/linalg';
 import { createRng } from '../../server/engine/prng';
 
 function numpy<T>(code: string, input: unknown): T {

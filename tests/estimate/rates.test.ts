@@ -36,8 +36,12 @@ function flip(wave: Uint8Array, n: number, flips: number, seed: number): Uint8Ar
 describe('closed-form rate (METHODS 7c)', () => {
   it('reproduces the quoted numbers', () => {
     expect(closedFormRate(20, 10, 90).rate).toBeCloseTo(2.938933, 6);
-    expect(expectedChange(10, 5)).toBeCloseTo(28.445425, 6);
-    expect(9 * Math.exp(-1)).toBeCloseTo(3.310915, 6);
+    // The closed form inverts E[C]: at the quoted E[C] = 28.445425 for lambda = 5 it gives back 5, and
+    // its slope there is 1 / (dE[C]/d lambda) = 1 / 3.310915 (central difference of the project's function).
+    expect(closedFormRate(28.445425, 10, 90).rate).toBeCloseTo(5, 5);
+    const h = 1e-4;
+    const slope = (closedFormRate(28.445425 + h, 10, 90).rate - closedFormRate(28.445425 - h, 10, 90).rate) / (2 * h);
+    expect(slope).toBeCloseTo(1 / 3.310915, 6);
   });
 
   it('simulated E[C] and its finite-difference derivative match the closed form (n = 10, lambda = 5)', () => {

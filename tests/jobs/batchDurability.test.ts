@@ -16,7 +16,7 @@ import { float64FromBlob, int32FromBlob, loadBatchContext, planBatchChunks } fro
 import { createBatch } from '../../server/batches/service';
 import { runChunk } from '../../server/batches/worker';
 import { openDataSource } from '../../server/db/dataSource';
-import { DEMO_PASSWORD, seedDemo } from '../../server/db/seed';
+import { DEMO_PASSWORD, seedDemo } from '../../server/demo/seed';
 import { jobQueueFor, stopJobQueue, syncDb } from '../../server/jobs';
 import type { ParsedCreateBatchBody } from '../../shared/batches';
 import { AUX_STATISTIC_IDS } from '../../shared/auxStatistics';

@@ -11,6 +11,7 @@
  *   as a data diagnostic)
  * - Wavefit METHODS.md section 6.
  */
+import { waveChange } from '../waveChange';
 import type { PairMask } from './consensus';
 
 export interface NetworkComparison {
@@ -80,5 +81,5 @@ export function compareNetworks(
 
 /** The persistence baseline J(x(t_m), x(t_m+1)) over the mask: the Jaccard index of two observed waves. */
 export function persistenceJaccard(n: number, start: ArrayLike<number>, end: ArrayLike<number>, mask?: PairMask): number | null {
-  return compareNetworks(n, start, end, mask).jaccard;
+  return waveChange(n, start, end, { mask }).jaccard;
 }

@@ -17,6 +17,7 @@
 import type { ParameterPlan, PeriodInput } from './problem';
 import { freePairMask } from '../simulate';
 import { NetworkState } from '../state';
+import { JACCARD_CAUTION, waveChange } from '../waveChange';
 
 export interface FitProblemNote {
   /** 'error' blocks a fit; 'warning' is shown but allowed. */
@@ -61,22 +62,12 @@ export function checkModelData(
   let totalFree = 0;
   periods.forEach((per, m) => {
     const n = Math.round(Math.sqrt(per.end.length));
-    const mask = freePairMask(n, per.free, per.active);
-    let change = 0;
-    let free = 0;
-    let both = 0;
-    let either = 0;
-    let ties = 0;
-    for (let k = 0; k < mask.length; k++) {
-      if (!mask[k]) continue;
-      free++;
-      const a = per.start[k];
-      const b = per.end[k];
-      change += a ^ b;
-      both += a & b;
-      either += a | b;
-      ties += b;
-    }
+    const { pairs: free, stable: both, created, dissolved } = waveChange(n, per.start, per.end, {
+      mask: freePairMask(n, per.free, per.active),
+    });
+    const change = created + dissolved;
+    const either = both + created + dissolved;
+    const ties = both + created;
     totalTies += ties;
     totalFree += free;
     const label = periodLabels[m];
@@ -96,14 +87,14 @@ export function checkModelData(
         path: `rates.${m}`,
         message: `${change} of ${free} pairs change between ${label}; the model assumes gradual change, so the rate may not be estimable.`,
       });
-    } else if (either > 0 && both / either < 0.2) {
+    } else if (either > 0 && both / either < JACCARD_CAUTION) {
       notes.push({
         severity: 'warning',
         code: 'low_jaccard',
         path: `rates.${m}`,
         message:
           `Only ${((100 * both) / either).toFixed(0)}% of the ties present in either wave are present in both (${label}); ` +
-          'below about 20% the gradual-change assumption is doubtful.',
+          `below about ${100 * JACCARD_CAUTION}% the gradual-change assumption is doubtful.`,
       });
     }
   });

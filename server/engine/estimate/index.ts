@@ -10,15 +10,13 @@
  *   Methodology 31, 361-395.
  * - Wavefit METHODS.md section 4.
  */
-import {
-  estimate,
-  isConverged,
-  type EstimationResult,
-  type EstimatorOptions,
-} from './methodOfMoments';
+import { estimate } from './methodOfMoments';
+import { isConverged, type EstimationResult, type EstimatorOptions } from './moments';
 import { buildSaomProblem, type ParameterInfo, type SaomProblemInput } from './problem';
 
 export * from './methodOfMoments';
+export * from './moments';
+export { sampleMoments, type MomentSample } from './sampler';
 export * from './problem';
 export * from './checks';
 export {
@@ -30,7 +28,7 @@ export {
   symmetricEigen,
   symmetricPseudoInverse,
   type Matrix,
-} from './linalg';
+} from '../linalg';
 
 export interface FittedParameter extends ParameterInfo {
   /** The estimate, or the fixed value. */

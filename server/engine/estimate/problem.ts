@@ -18,7 +18,7 @@ import type { Effect } from '../effects';
 import { deriveSeed, createRng } from '../prng';
 import { simulatePeriod, targetStatistics, hamming, freePairMask } from '../simulate';
 import { NetworkState } from '../state';
-import { EstimationFailed, type MomentProblem, type ParameterKind } from './methodOfMoments';
+import { EstimationFailed, type MomentProblem, type ParameterKind } from './moments';
 
 /**
  * A rate above this many opportunities per actor and possible partner (lambda > 100 n) means every tie

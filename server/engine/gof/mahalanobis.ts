@@ -10,13 +10,14 @@
  * - Penrose, R. (1955). A generalized inverse for matrices. Proceedings of the Cambridge Philosophical
  *   Society 51, 406-413. (the Moore-Penrose inverse)
  * - Golub, G.H. & Van Loan, C.F. (2013). Matrix Computations, 4th ed., section 8.5 (the cyclic Jacobi
- *   method for the symmetric eigenproblem).
+ *   method for the symmetric eigenproblem; implemented once for the engine in ../linalg.ts).
  * - North, B.V., Curtis, D. & Sham, P.C. (2002). A note on the calculation of empirical P values from
  *   Monte Carlo procedures. American Journal of Human Genetics 71, 439-441. (p = (1 + r)/(N + 1))
  * - Lospinoso, J. & Snijders, T.A.B. (2019). Goodness of fit for stochastic actor-oriented models.
  *   Methodological Innovations 12(3), 1-18. (the test applied to simulated auxiliary statistics)
  * - Wavefit METHODS.md section 5 (zero-variance components and the out-of-support flag are our own).
  */
+import { sampleCovariance, symmetricEigen as linalgSymmetricEigen, symmetricPseudoInverse, type Matrix } from '../linalg';
 
 /** A simulated sample: N rows of p numbers, row-major. */
 export interface SampleMatrix {
@@ -36,100 +37,58 @@ export function sampleMatrix(rows: ReadonlyArray<ArrayLike<number>>): SampleMatr
   return { rows: n, cols: p, data };
 }
 
-/** Column means and the sample covariance with the N - 1 denominator (p x p, row-major). */
-export function meanAndCovariance(sample: SampleMatrix): { mean: Float64Array; covariance: Float64Array } {
+/** The rows of a sample as views into its data (no copy). */
+function rowViews(sample: SampleMatrix): Float64Array[] {
   const { rows: n, cols: p, data } = sample;
-  if (n < 2) throw new Error(`mahalanobis: a covariance needs at least 2 simulated vectors, got ${n}`);
-  const mean = new Float64Array(p);
-  for (let s = 0; s < n; s++) for (let k = 0; k < p; k++) mean[k] += data[s * p + k];
-  for (let k = 0; k < p; k++) mean[k] /= n;
-  const covariance = new Float64Array(p * p);
-  const dev = new Float64Array(p);
-  for (let s = 0; s < n; s++) {
-    for (let k = 0; k < p; k++) dev[k] = data[s * p + k] - mean[k];
-    for (let a = 0; a < p; a++) {
-      const da = dev[a];
-      if (da === 0) continue;
-      for (let b = a; b < p; b++) covariance[a * p + b] += da * dev[b];
+  return Array.from({ length: n }, (_, s) => data.subarray(s * p, (s + 1) * p));
+}
+
+/** A row-major p x p matrix as rows. */
+function toRows(matrix: ArrayLike<number>, p: number): Matrix {
+  return Array.from({ length: p }, (_, i) => Array.from({ length: p }, (_, j) => matrix[i * p + j]));
+}
+
+/** A row-major p x p matrix as rows, after checking its size and that every entry is finite. */
+function checkedRows(matrix: ArrayLike<number>, p: number): Matrix {
+  if (matrix.length !== p * p) throw new Error(`mahalanobis: a ${p} x ${p} matrix has ${p * p} entries, got ${matrix.length}`);
+  for (let i = 0; i < p; i++) {
+    for (let j = 0; j < p; j++) {
+      if (!Number.isFinite(matrix[i * p + j])) throw new Error(`mahalanobis: matrix entry (${i}, ${j}) is not finite`);
     }
   }
-  for (let a = 0; a < p; a++) {
-    for (let b = a; b < p; b++) {
-      const v = covariance[a * p + b] / (n - 1);
-      covariance[a * p + b] = v;
-      covariance[b * p + a] = v;
-    }
-  }
-  return { mean, covariance };
+  return toRows(matrix, p);
+}
+
+/** Rows back to a row-major p x p matrix. */
+function toFlat(rows: Matrix, p: number): Float64Array {
+  const out = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) out[i * p + j] = rows[i][j];
+  return out;
 }
 
 /**
- * Eigenvalues and eigenvectors of a symmetric matrix by cyclic Jacobi rotations.
- * Returns values in descending order and the vectors as the columns of a row-major p x p matrix.
+ * Column means and the sample covariance with the N - 1 denominator (p x p, row-major), computed by
+ * the engine's one linear-algebra module (../linalg.ts).
+ */
+export function meanAndCovariance(sample: SampleMatrix): { mean: Float64Array; covariance: Float64Array } {
+  const { rows: n, cols: p } = sample;
+  if (n < 2) throw new Error(`mahalanobis: a covariance needs at least 2 simulated vectors, got ${n}`);
+  if (p === 0) return { mean: new Float64Array(0), covariance: new Float64Array(0) };
+  const { mean, cov } = sampleCovariance(rowViews(sample));
+  return { mean: Float64Array.from(mean), covariance: toFlat(cov, p) };
+}
+
+/**
+ * Eigenvalues and eigenvectors of a symmetric row-major p x p matrix (cyclic Jacobi rotations, in
+ * ../linalg.ts). Returns values in descending order and the vectors as the columns of a row-major
+ * p x p matrix.
  */
 export function symmetricEigen(matrix: ArrayLike<number>, p: number): { values: Float64Array; vectors: Float64Array } {
-  if (matrix.length !== p * p) throw new Error(`mahalanobis: a ${p} x ${p} matrix has ${p * p} entries, got ${matrix.length}`);
-  const a = Float64Array.from(matrix);
-  for (let i = 0; i < p; i++) {
-    for (let j = 0; j < p; j++) {
-      if (!Number.isFinite(a[i * p + j])) throw new Error(`mahalanobis: matrix entry (${i}, ${j}) is not finite`);
-    }
-  }
-  // Symmetrise (callers pass symmetric matrices; this removes rounding asymmetry).
-  for (let i = 0; i < p; i++) {
-    for (let j = i + 1; j < p; j++) {
-      const m = (a[i * p + j] + a[j * p + i]) / 2;
-      a[i * p + j] = m;
-      a[j * p + i] = m;
-    }
-  }
-  const v = new Float64Array(p * p);
-  for (let i = 0; i < p; i++) v[i * p + i] = 1;
-  let total = 0;
-  for (let k = 0; k < p * p; k++) total += a[k] * a[k];
-  for (let sweep = 0; sweep < 100; sweep++) {
-    let off = 0;
-    for (let i = 0; i < p; i++) for (let j = i + 1; j < p; j++) off += a[i * p + j] * a[i * p + j];
-    if (off <= 1e-30 * total || off === 0) break;
-    for (let q1 = 0; q1 < p; q1++) {
-      for (let q2 = q1 + 1; q2 < p; q2++) {
-        const apq = a[q1 * p + q2];
-        if (apq === 0) continue;
-        const app = a[q1 * p + q1];
-        const aqq = a[q2 * p + q2];
-        const theta = (aqq - app) / (2 * apq);
-        const t = (theta >= 0 ? 1 : -1) / (Math.abs(theta) + Math.sqrt(theta * theta + 1));
-        const c = 1 / Math.sqrt(t * t + 1);
-        const s = t * c;
-        for (let k = 0; k < p; k++) {
-          const akp = a[k * p + q1];
-          const akq = a[k * p + q2];
-          a[k * p + q1] = c * akp - s * akq;
-          a[k * p + q2] = s * akp + c * akq;
-        }
-        for (let k = 0; k < p; k++) {
-          const apk = a[q1 * p + k];
-          const aqk = a[q2 * p + k];
-          a[q1 * p + k] = c * apk - s * aqk;
-          a[q2 * p + k] = s * apk + c * aqk;
-        }
-        a[q1 * p + q2] = 0;
-        a[q2 * p + q1] = 0;
-        for (let k = 0; k < p; k++) {
-          const vkp = v[k * p + q1];
-          const vkq = v[k * p + q2];
-          v[k * p + q1] = c * vkp - s * vkq;
-          v[k * p + q2] = s * vkp + c * vkq;
-        }
-      }
-    }
-  }
-  const order = Array.from({ length: p }, (_, i) => i).sort((x, y) => a[y * p + y] - a[x * p + x]);
-  const values = new Float64Array(p);
+  const eigen = linalgSymmetricEigen(checkedRows(matrix, p));
+  const values = Float64Array.from(eigen.values);
   const vectors = new Float64Array(p * p);
-  order.forEach((src, dst) => {
-    values[dst] = a[src * p + src];
-    for (let k = 0; k < p; k++) vectors[k * p + dst] = v[k * p + src];
+  eigen.vectors.forEach((u, e) => {
+    for (let k = 0; k < p; k++) vectors[k * p + e] = u[k];
   });
   return { values, vectors };
 }
@@ -138,31 +97,17 @@ export function symmetricEigen(matrix: ArrayLike<number>, p: number): { values: 
 export const DEFAULT_EIGEN_TOLERANCE = 1e-10;
 
 /**
- * The Moore-Penrose inverse of a symmetric positive semi-definite matrix: sum over eigenvalues
- * lambda > tol * lambda_max of u u' / lambda. Also returns how many eigenvalues were kept.
+ * The Moore-Penrose inverse of a symmetric positive semi-definite row-major matrix: sum over
+ * eigenvalues lambda > tol * lambda_max of u u' / lambda (../linalg.ts). Also returns how many
+ * eigenvalues were kept.
  */
 export function pseudoInverseSymmetric(
   matrix: ArrayLike<number>,
   p: number,
   tolerance = DEFAULT_EIGEN_TOLERANCE,
 ): { inverse: Float64Array; rank: number } {
-  const { values, vectors } = symmetricEigen(matrix, p);
-  const inverse = new Float64Array(p * p);
-  const lambdaMax = p > 0 ? values[0] : 0;
-  let rank = 0;
-  if (lambdaMax > 0) {
-    for (let e = 0; e < p; e++) {
-      const lambda = values[e];
-      if (!(lambda > tolerance * lambdaMax)) continue;
-      rank++;
-      for (let i = 0; i < p; i++) {
-        const ui = vectors[i * p + e] / lambda;
-        if (ui === 0) continue;
-        for (let j = 0; j < p; j++) inverse[i * p + j] += ui * vectors[j * p + e];
-      }
-    }
-  }
-  return { inverse, rank };
+  const { inverse, rank } = symmetricPseudoInverse(checkedRows(matrix, p), tolerance);
+  return { inverse: toFlat(inverse, p), rank };
 }
 
 export interface OutOfSupport {

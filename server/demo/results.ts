@@ -2,7 +2,7 @@
  * Demo results for the review board: two candidate models of the Harbourside advice ties, each
  * estimated by the method of moments and simulated in a small batch (100 chains), a review request
  * from the lead to the reviewer, and a first verdict by the statistician. Called by the demo seed
- * (server/db/seed.ts, option withResults) and by the browser tests. Idempotent: models found by name
+ * (./seed.ts, option withResults) and by the browser tests. Idempotent: models found by name
  * are reused, and nothing is added when the study has batches already.
  */
 import type { DataSource } from 'typeorm';
@@ -13,8 +13,11 @@ import '../batches/jobKind';
 import { createBatch, getBatch } from '../batches/service';
 import { jobQueueFor, syncDb } from '../jobs';
 import '../models/jobKind';
-import { createModel, getModelRow, startFit } from '../models/service';
-import { createRequests, saveVerdict } from './service';
+import { startFit } from '../models/fits';
+import { getModelRow } from '../models/rows';
+import { createModel } from '../models/service';
+import { createRequests } from '../review/requests';
+import { saveVerdict } from '../review/service';
 
 export const DEMO_CHAINS = 100;
 
@@ -52,7 +55,7 @@ export const DEMO_MODELS: readonly (ModelSpecBody & { fitSeed: number; batchSeed
   },
 ];
 
-/** Close to the values the demo waves were generated with (server/db/demo-data.ts), for a fit that will not estimate. */
+/** Close to the values the demo waves were generated with (./waves.ts), for a fit that will not estimate. */
 const FALLBACK_VALUES: Record<string, number> = {
   'rate:1': 2.5,
   'rate:2': 2.5,

@@ -1,14 +1,18 @@
 /**
- * Synchronous database access for the job queue: the better-sqlite3 handle under TypeORM, and
- * transactions that never interleave with another transaction on the same connection.
+ * Synchronous database access: the better-sqlite3 handle under TypeORM, SQL timestamps, and
+ * transactions that never interleave with another transaction on the same connection. Used by the
+ * job queue and by every feature that writes with the synchronous handle (review, notify, reports).
  *
  * Why synchronous: TypeORM's better-sqlite3 driver shares one connection; two async transactions that
  * overlap silently nest (a SAVEPOINT inside the other), so one's rollback could undo the other's chunk.
  * A synchronous better-sqlite3 transaction runs to the end before any other JavaScript, and we start one
  * only when no async transaction is open.
  */
+import type BetterSqlite3 from 'better-sqlite3';
 import type { DataSource } from 'typeorm';
-import type { SyncDb } from './registry';
+
+/** The synchronous database handle (better-sqlite3) under TypeORM's data source. */
+export type SyncDb = BetterSqlite3.Database;
 
 export function syncDb(dataSource: DataSource): SyncDb {
   const db = (dataSource.driver as unknown as { databaseConnection?: SyncDb }).databaseConnection;

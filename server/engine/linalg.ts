@@ -1,9 +1,11 @@
 /**
- * Small dense linear algebra for the estimator: solving, inverting, symmetric eigendecomposition,
+ * Small dense linear algebra for the engine: solving, inverting, symmetric eigendecomposition,
  * pseudo-inverse, condition number and sample covariance of p x p matrices (p = number of estimated
- * parameters, rarely above 30), on plain number[][] so results travel as JSON unchanged.
+ * parameters or statistic components, rarely above 50), on plain number[][] so results travel as
+ * JSON unchanged.
  *
- * Purpose: everything Phases 1-3 of the method of moments need from matrices, with no dependency.
+ * Purpose: the one copy of these algorithms, for the method of moments (Phases 1-3) and for the
+ * Mahalanobis goodness-of-fit test (gof/mahalanobis.ts adapts its row-major arrays), with no dependency.
  *
  * References:
  * - Golub, G.H. & Van Loan, C.F. (2013). Matrix Computations, 4th ed. Johns Hopkins University Press.
