@@ -16,7 +16,7 @@ import { createRng, streamFor } from '../server/engine/prng';
 import { simulatePeriod } from '../server/engine/simulate';
 import { NetworkState } from '../server/engine/state';
 import { resolveAuxOptions, auxLabels } from '../server/engine/statistics';
-import { seededLayout } from '../server/review/layout';
+import { seededLayout } from '../server/data/layout';
 import { frameOf, trackOf } from '../features/explore/playback';
 import type { BenchSection } from './engine';
 

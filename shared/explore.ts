@@ -89,6 +89,8 @@ export interface ChoiceResponse {
   rate: number;
   /** Periods the fit has a rate for. */
   coveredPeriods: number[];
+  /** Alters not offered because the pair is fixed in this period or the alter is absent (left out of `options`). */
+  fixedLeftOut: number;
   /** Every option, most likely first. */
   options: ChoiceOptionDto[];
   /** Whether the fit converged (a caption warns when it did not). */
@@ -108,6 +110,10 @@ export interface OverviewResponse {
   probabilities: number[][];
   /** Ties at the start wave, [sender, receiver]. */
   startTies: Array<[number, number]>;
+  /** Actors absent in this period (their rows are all "no change"; nobody may choose them). */
+  absent: number[];
+  /** Ordered pairs between present actors that are fixed in this period (never offered). */
+  fixedPairs: number;
   coveredPeriods: number[];
   converged: boolean | null;
 }

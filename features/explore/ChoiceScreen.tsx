@@ -204,6 +204,7 @@ function Explanation({ data }: { data: ChoiceResponse }) {
       <Text variant="caption">
         {`Bars beside each option show what each effect adds to its utility (β × change statistic): right raises its weight, left lowers it. An effect's part c multiplies the option's weight by e^c, which is what "times more likely" means, against all other options, the other effects held as they are.`}
       </Text>
+      {data.fixedLeftOut ? <Text variant="small">{`${data.fixedLeftOut} alter${data.fixedLeftOut === 1 ? ' is' : 's are'} not offered to ${name} in this period (a fixed pair or an absent actor).`}</Text> : null}
       {shown.map((o, k) => (
         <OptionRow key={o.alter ?? -1} option={o} data={data} scale={scale} explain={k < 4} />
       ))}
@@ -269,6 +270,14 @@ export function ChoiceScreen() {
           <ChoiceChips label="Order the actors" options={ov.orderChoices} value={order} onChange={setOrder} />
           <OverviewGrid data={ov} selected={actor} onSelect={setActor} width={inner} />
           <GridLegend />
+          {ov.absent.length || ov.fixedPairs ? (
+            <Text variant="small" testID="overview-fixed">
+              {[
+                ov.absent.length ? `Not present at both waves of this period: ${ov.absent.map((i) => ov.actors[i]).join(', ')} (no ministeps; nobody may choose them).` : '',
+                ov.fixedPairs ? `${ov.fixedPairs} pairs are fixed in this period and never offered (shown as 0%).` : '',
+              ].join(' ').trim()}
+            </Text>
+          ) : null}
           <Text variant="caption">
             {ov.orderBy === 'cluster'
               ? 'Ordered so that actors with similar ties at the start sit together (average-linkage clustering of their tie profiles); blocks of dark cells show groups that tend to choose each other.'

@@ -21,10 +21,11 @@ import { loadStudyData, type LoadedStudyData } from '../data/store';
 import { buildEffects } from '../engine/effects';
 import { choiceMatrix, clusterOrder, evenGrid, explainChoice, MinistepLog, TieTimelines } from '../engine/explore';
 import { deriveSeed } from '../engine/prng';
+import { freePairMask } from '../engine/simulate';
 import { NetworkState } from '../engine/state';
 import { ApiError, badRequest, conflict, notFound } from '../errors';
 import { syncDb } from '../db/sync';
-import { seededLayout } from '../review/layout';
+import { seededLayout } from '../data/layout';
 
 /** Refusals are ApiErrors with a plain message (400 bad input, 404 not here, 409 not ready); the error handler answers them. */
 function refuse(message: string, status: 400 | 404 | 409 = 400): ApiError {
@@ -53,6 +54,10 @@ interface FitSetting {
   effects: ReturnType<typeof buildEffects>;
   params: number[];
   converged: boolean | null;
+  /** n*n, 1 = may be offered; undefined when every pair is free. */
+  allowed: Uint8Array | undefined;
+  /** Actors absent in this period (no ministeps). */
+  absent: number[];
 }
 
 async function fitSetting(dataSource: DataSource, studyId: number, fitId: number, period: number): Promise<FitSetting> {
@@ -87,10 +92,23 @@ async function fitSetting(dataSource: DataSource, studyId: number, fitId: number
     throw refuse(`The fit's model does not fit this study's data any more: ${(error as Error).message.replace(/^effects: /, '')}`, 409);
   }
   const n = data.actors.length;
-  const state = NetworkState.fromAdjacency(n, periodNetworks(data)[period - 1].start);
+  const net = periodNetworks(data)[period - 1];
+  const state = NetworkState.fromAdjacency(n, net.start);
+  // Fixed pairs and absent actors (data/periods.ts) are never offered, as in the simulator.
+  const allowed = net.free || net.active ? freePairMask(n, net.free ?? undefined, net.active ?? undefined) : undefined;
+  const absent: number[] = [];
+  if (net.active) for (let i = 0; i < n; i++) if (!net.active[i]) absent.push(i);
   const row = syncDb(dataSource).prepare(`SELECT "mode", "results" FROM "fits" WHERE "id" = ?`).get(fitId) as { mode: string; results: string | null } | undefined;
   const converged = row && row.mode === 'estimate' && row.results ? Boolean((JSON.parse(row.results) as { converged?: boolean }).converged) : null;
-  return { fitId, period, data, model, rate, state, effects, params: model.effects.map((e) => e.value), converged };
+  return { fitId, period, data, model, rate, state, effects, params: model.effects.map((e) => e.value), converged, allowed, absent };
+}
+
+/** Pairs between present actors that are not offered (fixed in this period). */
+function countFixed(n: number, allowed: Uint8Array, absent: number[]): number {
+  const away = new Set(absent);
+  let c = 0;
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (i !== j && !away.has(i) && !away.has(j) && !allowed[i * n + j]) c++;
+  return c;
 }
 
 const coveredOf = (model: BatchModel) => model.rates.map((r, k) => (r == null ? 0 : k + 1)).filter((p) => p > 0);
@@ -101,7 +119,11 @@ export async function choiceOf(dataSource: DataSource, studyId: number, fitId: n
   const s = await fitSetting(dataSource, studyId, fitId, period);
   const n = s.data.actors.length;
   if (actor >= n) throw refuse(`The study has ${plural(n, 'actor')}, numbered 0 to ${n - 1}; there is no actor ${actor}.`);
-  const { options } = explainChoice(s.state, actor, s.effects, s.params);
+  if (s.absent.includes(actor)) {
+    throw refuse(`${s.data.actors[actor]} is not present at both waves of period ${period}, so has no ministeps in it.`);
+  }
+  const { options } = explainChoice(s.state, actor, s.effects, s.params, s.allowed);
+  const fixedLeftOut = n - 1 - (options.length - 1);
   const sorted = [...options].sort((a, b) => b.probability - a.probability || a.alter - b.alter);
   return {
     fitId,
@@ -111,6 +133,7 @@ export async function choiceOf(dataSource: DataSource, studyId: number, fitId: n
     effects: effectsOf(s),
     rate: s.rate,
     coveredPeriods: coveredOf(s.model),
+    fixedLeftOut,
     options: sorted.map((o) => ({
       alter: o.alter < 0 ? null : o.alter,
       tie: o.tie ? 1 : 0,
@@ -126,7 +149,7 @@ export async function choiceOf(dataSource: DataSource, studyId: number, fitId: n
 export async function overviewOf(dataSource: DataSource, studyId: number, fitId: number, period: number, orderBy: string): Promise<OverviewResponse> {
   const s = await fitSetting(dataSource, studyId, fitId, period);
   const n = s.data.actors.length;
-  const matrix = choiceMatrix(s.state, s.effects, s.params);
+  const matrix = choiceMatrix(s.state, s.effects, s.params, s.allowed);
   const covNames = Object.keys(s.data.covariates).sort();
   let order: number[];
   if (orderBy === 'cluster') order = clusterOrder(s.state);
@@ -156,6 +179,8 @@ export async function overviewOf(dataSource: DataSource, studyId: number, fitId:
     ],
     probabilities: Array.from({ length: n }, (_, i) => Array.from(matrix.subarray(i * n, (i + 1) * n))),
     startTies: edgesOf(n, s.state.adj),
+    absent: s.absent,
+    fixedPairs: s.allowed ? countFixed(n, s.allowed, s.absent) : 0,
     coveredPeriods: coveredOf(s.model),
     converged: s.converged,
   };

@@ -270,3 +270,77 @@ describe('explore API: tie timelines', () => {
     for (const v of few.pairs[0].shares) expect(Math.round(v * 10)).toBeCloseTo(v * 10, 9);
   });
 });
+
+describe('explore API: fixed pairs and absent actors (the simulator\'s masks)', () => {
+  // Hale joins at wave 2; Ansel -> Brann is fixed at 0 and Cleo -> Dov at 1 at every wave
+  // (the same upload as tests/api/dataMasks.test.ts). A fixed pair and an absent actor are never
+  // offered as a choice (common practice for structural zeros and composition change).
+  const ACTORS = ['Ansel', 'Brann', 'Cleo', 'Dov', 'Esme', 'Finn', 'Greta', 'Hale'];
+  const UPLOAD = {
+    format: 'edgelist',
+    waves: [
+      { label: 'w1', fileName: 'w1.csv', content: 'Cleo,Dov\nBrann,Cleo\nDov,Esme\nEsme,Finn\nFinn,Greta\nGreta,Ansel\nBrann,Ansel\n' },
+      { label: 'w2', fileName: 'w2.csv', content: 'Cleo,Dov\nBrann,Cleo\nDov,Esme\nEsme,Finn\nFinn,Hale\nGreta,Ansel\nHale,Greta\nAnsel,Cleo\n' },
+      { label: 'w3', fileName: 'w3.csv', content: 'Cleo,Dov\nDov,Esme\nEsme,Finn\nFinn,Hale\nHale,Greta\nAnsel,Cleo\nCleo,Ansel\nBrann,Dov\n' },
+    ],
+    actors: { fileName: 'crew.csv', content: `label,years,present@1,present@2,present@3\n${ACTORS.map((a, i) => `${a},${i + 2},${a === 'Hale' ? 0 : 1},1,1`).join('\n')}\n` },
+    fixedPairs: { fileName: 'fixed.csv', content: 'sender,receiver,value,waves\nAnsel,Brann,0,\nCleo,Dov,1,1-3\n' },
+  };
+  let sid: number;
+  let fit: number;
+  let batch: number;
+  const A = (name: string) => ACTORS.indexOf(name);
+
+  beforeAll(async () => {
+    sid = (await request(t.app).post('/api/studies').set(bearer(stats)).send({ name: 'Masks', description: '' }).expect(201)).body.study.id;
+    await request(t.app).post(`/api/studies/${sid}/data`).set(bearer(stats)).send(UPLOAD).expect(201);
+    const model = await request(t.app)
+      .post(`/api/studies/${sid}/models`)
+      .set(bearer(stats))
+      .send({ name: 'Density', rates: [{ period: 1, estimate: false, value: 4 }, { period: 2, estimate: false, value: 4 }], effects: [{ id: 'density', estimate: false, value: 0.5 }] })
+      .expect(201);
+    fit = (await request(t.app).post(`/api/studies/${sid}/models/${model.body.model.id}/fits`).set(bearer(stats)).send({ mode: 'fixed' }).expect(201)).body.fit.id;
+    batch = (await request(t.app).post(`/api/studies/${sid}/batches`).set(bearer(stats)).send({ model: { rates: [6, 6], effects: [{ id: 'density', value: 1.5 }] }, chains: 30, seed: 5, statistics: ['dyad_census'] }).expect(201)).body.batch.id;
+    for (let i = 0; i < 600; i++) {
+      const b = await request(t.app).get(`/api/studies/${sid}/batches/${batch}`).set(bearer(stats));
+      if (b.body.batch.state === 'done') break;
+      await sleep(100);
+    }
+  });
+
+  it('a fixed pair and an absent actor are not offered; the absent actor has no explanation', async () => {
+    const ansel = (await request(t.app).get(`/api/studies/${sid}/explore/fits/${fit}/choices?period=1&actor=${A('Ansel')}`).set(bearer(stats)).expect(200)).body as ChoiceResponse;
+    const alters = ansel.options.map((o) => o.alter);
+    expect(alters).not.toContain(A('Brann'));
+    expect(alters).not.toContain(A('Hale'));
+    expect(ansel.options.length).toBe(ACTORS.length - 1 - 2 + 1);
+    expect(ansel.fixedLeftOut).toBe(2);
+    // density only: every offered creation has weight e^0.5, a dissolution e^-0.5, no change 1.
+    const z = ansel.options.reduce((s, o) => s + (o.alter === null ? 1 : Math.exp(o.tie ? -0.5 : 0.5)), 0);
+    for (const o of ansel.options) expect(o.probability).toBeCloseTo((o.alter === null ? 1 : Math.exp(o.tie ? -0.5 : 0.5)) / z, 12);
+    const hale = await request(t.app).get(`/api/studies/${sid}/explore/fits/${fit}/choices?period=1&actor=${A('Hale')}`).set(bearer(stats));
+    expect(hale.status).toBe(400);
+    expect(hale.body.error.message).toMatch(/Hale is not present at both waves of period 1/);
+    const ov = (await request(t.app).get(`/api/studies/${sid}/explore/fits/${fit}/overview?period=1`).set(bearer(stats)).expect(200)).body as OverviewResponse;
+    expect(ov.absent).toEqual([A('Hale')]);
+    expect(ov.fixedPairs).toBe(2);
+    expect(ov.probabilities[A('Ansel')][A('Brann')]).toBe(0);
+    expect(ov.probabilities[A('Hale')][A('Hale')]).toBe(1);
+    for (const row of ov.probabilities) expect(row.reduce((a, b) => a + b, 0)).toBeCloseTo(1, 12);
+  });
+
+  it('a replayed chain of a masked batch matches its stored row and never touches a fixed pair or an absent actor', async () => {
+    for (const chain of [1, 30]) {
+      const r = (await request(t.app).get(`/api/studies/${sid}/explore/batches/${batch}/replay?period=1&chain=${chain}`).set(bearer(stats)).expect(200)).body as ReplayResponse;
+      expect(r.matchesStored).toBe(true);
+      expect(r.changes).toBeGreaterThan(0);
+      for (let s = 0; s < r.ministeps; s++) {
+        expect(r.steps.actor[s]).not.toBe(A('Hale'));
+        if (r.steps.alter[s] < 0) continue;
+        expect(r.steps.alter[s]).not.toBe(A('Hale'));
+        expect([r.steps.actor[s], r.steps.alter[s]]).not.toEqual([A('Ansel'), A('Brann')]);
+        expect([r.steps.actor[s], r.steps.alter[s]]).not.toEqual([A('Cleo'), A('Dov')]);
+      }
+    }
+  });
+});
