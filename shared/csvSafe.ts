@@ -7,9 +7,11 @@
  * spreadsheet shows as text; then RFC 4180 quoting applies (Shafranovich 2005, Common Format and
  * MIME Type for CSV Files): fields with a comma, quote or line break are quoted, quotes doubled.
  *
- * Numbers are written by the server itself (a finite JavaScript number, e.g. -2.2 or 1e-7) and stay
- * as they are, so negative values still read as numbers. A text cell that merely looks numeric is
- * not spared: "-1+1" would be a formula.
+ * Numbers stay numbers: a finite JavaScript number is written as it is, and so is a text cell that is
+ * exactly one plain number ("-3.5", "+7", "1e-7"), which a spreadsheet reads as that number and never
+ * as a formula. A text cell that merely starts like one is neutralised: "-1+1" would be a formula.
+ * The upload reader (server/data/csv.ts) drops the apostrophe again with restoreCell, so a
+ * downloaded data file uploads to the same rows.
  */
 
 export type CsvValue = string | number | boolean | null | undefined;
@@ -17,9 +19,17 @@ export type CsvValue = string | number | boolean | null | undefined;
 /** Characters that make a spreadsheet read a cell as a formula (OWASP CSV Injection). */
 export const FORMULA_START = /^[=+\-@\t\r]/;
 
+/** A text cell holding exactly one plain decimal number. */
+const PLAIN_NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
 /** Neutralises a text cell that would start a formula; other text is returned unchanged. */
 export function neutraliseFormula(text: string): string {
-  return FORMULA_START.test(text) ? `'${text}` : text;
+  return FORMULA_START.test(text) && !PLAIN_NUMBER.test(text) ? `'${text}` : text;
+}
+
+/** Undoes neutraliseFormula when reading a file back: an apostrophe before = + - @, tab or CR is dropped. */
+export function restoreCell(value: string): string {
+  return value.length > 1 && value[0] === "'" && FORMULA_START.test(value.slice(1)) ? value.slice(1) : value;
 }
 
 /** One CSV field: numbers as written, text neutralised and quoted when needed. */
@@ -28,7 +38,7 @@ export function csvCell(value: CsvValue): string {
   if (typeof value === 'number') return Number.isFinite(value) ? String(value) : '';
   if (typeof value === 'boolean') return value ? 'true' : 'false';
   const text = neutraliseFormula(value);
-  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+  return /[",\r\n]|^\s|\s$/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
 
 /** One CSV record (no line end). */
