@@ -13,6 +13,7 @@
  *   GET    /studies/:studyId/batches/:batchId/gof?statistic=&period=&coverage=0.5,0.9
  *                                                                      -> GofResponse                     (members; batch done)
  *   GET    /studies/:studyId/batches/:batchId/gof/summary?period=      -> GofSummaryResponse              (members; batch done)
+ *          (gof and gof/summary also take period=all: every period summed chain by chain; 400 unless the batch has every period)
  *   GET    /studies/:studyId/batches/:batchId/consensus?period=&threshold=0.5 | &top=1
  *                                                                      -> ConsensusResponse               (members; batch done)
  *   GET    /studies/:studyId/batches/:batchId/statistics.csv?statistic=&period=
@@ -206,11 +207,14 @@ export interface MahalanobisDto {
   outOfSupport: { component: string; observed: number; simulated: number }[];
 }
 
+/** A period (from 1), or 'all': the statistics summed over every period chain by chain (`period=all`). */
+export type GofPeriod = number | 'all';
+
 export interface GofResponse {
   batchId: number;
   statistic: AuxStatisticId;
   label: string;
-  period: number;
+  period: GofPeriod;
   components: string[];
   observed: number[];
   mean: number[];
@@ -240,7 +244,7 @@ export interface GofSummaryRow {
 }
 export interface GofSummaryResponse {
   batchId: number;
-  period: number;
+  period: GofPeriod;
   chains: number;
   coverages: number[];
   rows: GofSummaryRow[];

@@ -105,6 +105,44 @@ export function checkPeriod(batch: LoadedBatch, raw: unknown): number {
   return p;
 }
 
+/** The stored period number of "all periods together" (periods are numbered from 1). */
+export const ALL_PERIODS = 0;
+
+/** `period=all` or one period of the batch. All periods together needs every period of the study. */
+export function checkPeriodOrAll(batch: LoadedBatch, raw: unknown): number {
+  if (raw !== 'all') return checkPeriod(batch, raw);
+  const simulated = batch.summary.periods;
+  const study = batch.model.rates.map((_, k) => k + 1);
+  if (study.some((p) => !simulated.includes(p))) {
+    throw badRequest(
+      `This batch simulated period${simulated.length > 1 ? 's' : ''} ${simulated.join(', ')} only; all periods together needs every period (the study has ${study.length}).`,
+    );
+  }
+  return ALL_PERIODS;
+}
+
+/** The batch with the observed vectors summed over its periods, kept under ALL_PERIODS. */
+export function withSummedObserved<T extends Pick<LoadedBatch, 'observed' | 'summary'>>(batch: T): T {
+  const summed: Record<string, number[]> = {};
+  for (const p of batch.summary.periods) {
+    for (const [statistic, values] of Object.entries(batch.observed[String(p)] ?? {})) {
+      const acc = (summed[statistic] ??= values.map(() => 0));
+      values.forEach((v, k) => (acc[k] += v));
+    }
+  }
+  return { ...batch, observed: { ...batch.observed, [String(ALL_PERIODS)]: summed } };
+}
+
+/** Chain c's vector summed over the batch's periods (chain c of every period), chains x width. */
+export function summedMatrix(dataSource: DataSource, batch: LoadedBatch): { chains: number; width: number; data: Float64Array } {
+  const parts = batch.summary.periods.map((p) => periodMatrix(dataSource, batch, p));
+  const { chains, width } = parts[0];
+  if (parts.some((m) => m.chains !== chains)) throw new Error(`batch: the periods of batch ${batch.row.id} have different numbers of chains`);
+  const data = new Float64Array(chains * width);
+  for (const m of parts) for (let i = 0; i < data.length; i++) data[i] += m.data[i];
+  return { chains, width, data };
+}
+
 export function checkStatistic(batch: LoadedBatch, raw: unknown): { layout: StatisticLayout; offset: number } {
   const ids = batch.layout.map((l) => l.statistic);
   const id = raw === undefined || raw === '' ? ids[0] : String(raw);

@@ -23,7 +23,7 @@ import { onBatchDone } from './gofHooks';
 import type { GofWorkerReply, GofWorkerRequest } from './gofWorker';
 import type { ApiErrorCode } from '../../shared/api';
 import { ApiError } from '../errors';
-import { periodMatrix } from './gof';
+import { ALL_PERIODS, periodMatrix, summedMatrix, withSummedObserved } from './gof';
 import { getBatch, type LoadedBatch } from './service';
 
 export type { StatisticGof } from './gofCompute';
@@ -168,7 +168,15 @@ export class GofStore {
     if (running) return running;
     const work = (async () => {
       this.computations++;
-      const results = await inWorker(this.id, batch, () => periodMatrix(this.dataSource, batch, period), period, coverages);
+      // All periods together (ALL_PERIODS): chain by chain sums over the periods, computed and kept like a period.
+      const all = period === ALL_PERIODS;
+      const results = await inWorker(
+        this.id,
+        all ? withSummedObserved(batch) : batch,
+        () => (all ? summedMatrix(this.dataSource, batch) : periodMatrix(this.dataSource, batch, period)),
+        period,
+        coverages,
+      );
       if (isDefault) this.store(batch.row.id, period, results);
       this.remember(memoKey, results);
       return results;
@@ -187,6 +195,9 @@ export class GofStore {
    */
   async ensure(batch: LoadedBatch): Promise<void> {
     for (const period of batch.summary.periods) await this.period(batch, period, [...DEFAULT_COVERAGES]);
+    // All periods together, when the batch has every period of the study and more than one.
+    const study = batch.model.rates.length;
+    if (study > 1 && batch.summary.periods.length === study) await this.period(batch, ALL_PERIODS, [...DEFAULT_COVERAGES]);
   }
 
   /** The default GOF of every period, on this thread: only for a caller that cannot wait (fallback). */

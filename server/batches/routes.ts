@@ -3,14 +3,14 @@
  * goodness-of-fit views of a finished batch. The contract is in shared/batches.ts.
  */
 import { Router, type Request } from 'express';
-import { createBatchBodySchema, type ParsedCreateBatchBody } from '../../shared/batches';
+import { createBatchBodySchema, type GofPeriod, type ParsedCreateBatchBody } from '../../shared/batches';
 import type { ApiErrorCode } from '../../shared/api';
 import { currentStudy, currentUser } from '../auth/context';
 import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
 import { consensusOf } from './consensus';
-import { checkPeriod, checkStatistic, gofSummaryFrom, parseCoverages, periodMatrix, statisticsCsv } from './gof';
+import { ALL_PERIODS, checkPeriod, checkPeriodOrAll, checkStatistic, gofSummaryFrom, parseCoverages, periodMatrix, statisticsCsv } from './gof';
 import { gofStoreFor } from './gofStore';
 import { batchDetail, cancelBatch, createBatch, getBatch, listBatches, type LoadedBatch } from './service';
 
@@ -30,6 +30,9 @@ class MatrixCache {
     return hit;
   }
 }
+
+/** All periods together is stored as period 0 and answered as period "all". */
+const asAll = <T extends { period: GofPeriod }>(body: T): T => (body.period === ALL_PERIODS ? { ...body, period: 'all' } : body);
 
 export function batchesRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
@@ -83,21 +86,21 @@ export function batchesRouter(deps: RouteDeps): Router {
 
   router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
-    const period = checkPeriod(batch, req.query.period);
+    const period = checkPeriodOrAll(batch, req.query.period);
     const statistic = checkStatistic(batch, req.query.statistic);
     const coverages = parseCoverages(req.query.coverage);
     finished(batch);
     const results = await gof.period(batch, period, coverages);
-    res.json(results.find((r) => r.gof.statistic === statistic.layout.statistic)!.gof);
+    res.json(asAll(results.find((r) => r.gof.statistic === statistic.layout.statistic)!.gof));
   });
 
   router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
-    const period = checkPeriod(batch, req.query.period);
+    const period = checkPeriodOrAll(batch, req.query.period);
     const coverages = parseCoverages(req.query.coverage);
     finished(batch);
     const results = await gof.period(batch, period, coverages);
-    res.json(gofSummaryFrom(batch, results.map((r) => r.gof), period, coverages));
+    res.json(asAll(gofSummaryFrom(batch, results.map((r) => r.gof), period, coverages)));
   });
 
   router.get('/:studyId/batches/:batchId/consensus', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
