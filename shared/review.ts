@@ -451,6 +451,12 @@ export interface ReportStatisticJson {
   lineups: { id: number; panels: number; seed: number; createdBy: string | null; result: LineupResult }[];
 }
 
+/**
+ * A statistic over all periods together: each chain's statistics summed over the periods, the observed
+ * end waves' too, then the same envelopes and test. No verdicts (those stay per period).
+ */
+export type ReportAllPeriodsJson = Omit<ReportStatisticJson, 'period' | 'verdict' | 'comments' | 'lineups'>;
+
 export interface ReportJson {
   generatedAt: string;
   study: { id: number; name: string; description: string; actors: number; waves: string[] };
@@ -466,6 +472,8 @@ export interface ReportJson {
     tauMax: number | null;
   };
   statistics: ReportStatisticJson[];
+  /** All periods together; null when the batch has one period or lacks one of the study's periods. */
+  allPeriods: ReportAllPeriodsJson[] | null;
   counts: VerdictCounts;
   comparison: CompareResponse | null;
   signoffs: SignoffDto[];

@@ -23,7 +23,8 @@ export interface EnvelopeChartDto {
   batchId: number;
   statistic: AuxStatisticId;
   label: string;
-  period: number;
+  /** A period, or 'all': every period summed chain by chain (read-only; verdicts stay per period). */
+  period: number | 'all';
   components: string[];
   observed: number[];
   mean: number[];

@@ -2,7 +2,7 @@ import { useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
 import { Linking, View } from 'react-native';
 import { can } from '../../shared/api';
-import type { BatchDetail, GofSummaryRow } from '../../shared/batches';
+import type { BatchDetail, GofPeriod, GofSummaryRow } from '../../shared/batches';
 import { StaleDataBanner } from '../data/StaleDataBanner';
 import { getApiBase, messageOf } from '../api/client';
 import { parseStudyId, useStudy } from '../studies/queries';
@@ -53,7 +53,7 @@ const componentColumns: Column<ComponentRow>[] = [
 ];
 
 /** One statistic: p-value, reading, caution, and on request the observed values against the envelope. */
-function StatisticCard({ studyId, batch, row, period }: { studyId: number; batch: BatchDetail; row: GofSummaryRow; period: number }) {
+function StatisticCard({ studyId, batch, row, period }: { studyId: number; batch: BatchDetail; row: GofSummaryRow; period: GofPeriod }) {
   const [open, setOpen] = useState(false);
   const gof = useGof(studyId, batch, open ? row.statistic : null, period);
   const word = pWord(row.pValue);
@@ -106,12 +106,14 @@ function StatisticCard({ studyId, batch, row, period }: { studyId: number; batch
           accessibilityLabel={`${open ? 'Hide' : 'Show'} the values of ${row.label}`}
           testID={`gof-toggle-${row.statistic}`}
         />
-        <Button
-          label="Download chains (CSV)"
-          variant="quiet"
-          onPress={() => void Linking.openURL(getApiBase().replace(/\/api$/, '') + batchKeys.csv(studyId, batch.id, row.statistic, period))}
-          accessibilityLabel={`Download the simulated ${row.label} of every chain as CSV`}
-        />
+        {period === 'all' ? null : (
+          <Button
+            label="Download chains (CSV)"
+            variant="quiet"
+            onPress={() => void Linking.openURL(getApiBase().replace(/\/api$/, '') + batchKeys.csv(studyId, batch.id, row.statistic, period))}
+            accessibilityLabel={`Download the simulated ${row.label} of every chain as CSV`}
+          />
+        )}
       </ButtonRow>
       {open && gof.isLoading ? <Loading label="Computing the envelope…" /> : null}
       {open && gof.error ? <LoadError message={gof.error.message} onRetry={() => void gof.mutate()} /> : null}
@@ -177,7 +179,9 @@ export function BatchScreen() {
   const [cancelError, setCancelError] = useState<string | null>(null);
   const [cancelling, setCancelling] = useState(false);
   const batch = data?.batch;
-  const chosen = batch ? Number(period ?? batch.periods[0]) : null;
+  // 'all': every period summed chain by chain; offered when the batch has every period of the study.
+  const allOffered = !!batch && batch.periods.length > 1 && batch.periods.length === batch.model.rates.length;
+  const chosen: GofPeriod | null = batch ? (period === 'all' && allOffered ? 'all' : Number(period ?? batch.periods[0])) : null;
   const summary = useGofSummary(studyId ?? 0, batch, chosen);
 
   if (studyId === null || batchId === null || study.error?.status === 404 || error?.status === 404) return <StudyNotFound />;
@@ -249,7 +253,10 @@ export function BatchScreen() {
               {batch.periods.length > 1 ? (
                 <SegmentedControl
                   label="Period"
-                  options={batch.periods.map((p) => ({ value: String(p), label: `Period ${p}` }))}
+                  options={[
+                    ...batch.periods.map((p) => ({ value: String(p), label: `Period ${p}` })),
+                    ...(allOffered ? [{ value: 'all', label: 'All periods together' }] : []),
+                  ]}
                   value={String(chosen)}
                   onChange={setPeriod}
                 />
@@ -262,10 +269,15 @@ export function BatchScreen() {
                     Each statistic of the observed end wave set against the {plural(summary.data.chains, 'chain')}: a small p-value means the observed network is
                     unusual for this model. The team's verdicts belong on the review board.
                   </Text>
+                  {chosen === 'all' ? (
+                    <Banner tone="info" testID="gof-all-periods">
+                      {`All periods together: each chain's statistics are summed over periods ${batch.periods.join(', ')}, and so are the observed end waves'. One test over the whole study; a period that fits badly can hide behind one that fits well, so read the periods too.`}
+                    </Banner>
+                  ) : null}
                   {summary.data.rows.map((row) => (
                     <StatisticCard key={`${row.statistic}-${chosen}`} studyId={studyId} batch={batch} row={row} period={chosen!} />
                   ))}
-                  <ConsensusCard studyId={studyId} batch={batch} period={chosen!} />
+                  {chosen === 'all' ? null : <ConsensusCard studyId={studyId} batch={batch} period={chosen!} />}
                 </View>
               ) : null}
             </>

@@ -3,6 +3,7 @@ import useSWR, { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
 import { isActive, liveWhile } from '../api/live';
 import type {
+  GofPeriod,
   BatchDetail,
   BatchSummary,
   ConsensusResponse,
@@ -14,9 +15,9 @@ import type {
 export const batchKeys = {
   list: (studyId: number | string) => `/studies/${studyId}/batches`,
   detail: (studyId: number | string, batchId: number | string) => `/studies/${studyId}/batches/${batchId}`,
-  summary: (studyId: number | string, batchId: number | string, period: number) =>
+  summary: (studyId: number | string, batchId: number | string, period: GofPeriod) =>
     `/studies/${studyId}/batches/${batchId}/gof/summary?period=${period}`,
-  gof: (studyId: number | string, batchId: number | string, statistic: string, period: number) =>
+  gof: (studyId: number | string, batchId: number | string, statistic: string, period: GofPeriod) =>
     `/studies/${studyId}/batches/${batchId}/gof?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   consensus: (studyId: number | string, batchId: number | string, period: number, threshold: number) =>
     `/studies/${studyId}/batches/${batchId}/consensus?period=${period}&threshold=${threshold}`,
@@ -36,12 +37,12 @@ export function useBatch(studyId: number | null, batchId: number | null) {
   });
 }
 
-export function useGofSummary(studyId: number, batch: BatchDetail | undefined, period: number | null) {
+export function useGofSummary(studyId: number, batch: BatchDetail | undefined, period: GofPeriod | null) {
   const ready = batch?.state === 'done' && period != null;
   return useSWR<GofSummaryResponse, ApiError>(ready ? batchKeys.summary(studyId, batch!.id, period!) : null);
 }
 
-export function useGof(studyId: number, batch: BatchDetail | undefined, statistic: string | null, period: number | null) {
+export function useGof(studyId: number, batch: BatchDetail | undefined, statistic: string | null, period: GofPeriod | null) {
   const ready = batch?.state === 'done' && statistic != null && period != null;
   return useSWR<GofResponse, ApiError>(ready ? batchKeys.gof(studyId, batch!.id, statistic!, period!) : null);
 }

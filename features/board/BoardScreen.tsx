@@ -29,7 +29,7 @@ import { space } from '../ui/tokens';
 import { useBreakpoint } from '../ui/useBreakpoint';
 import { parseId } from '../api/params';
 import { useBoard, useBoardMutations } from './queries';
-import { StatisticCard } from './StatisticCard';
+import { StatisticCard, TogetherCard } from './StatisticCard';
 import { SummaryStrip } from './SummaryStrip';
 
 function RequestReviewPanel({ studyId, batchId }: { studyId: number; batchId: number }) {
@@ -120,7 +120,10 @@ export function BoardScreen() {
   const isLead = !!user?.isAdmin || can(role, 'manageTeam');
   const b = batch.data?.batch;
   const waves = data.data?.waves.map((w) => w.label);
-  const cards = (board.data?.cards ?? []).filter((c) => period === 'all' || String(c.period) === period);
+  const together = period === 'together';
+  const cards = together ? [] : (board.data?.cards ?? []).filter((c) => period === 'all' || String(c.period) === period);
+  // All periods together needs every period of the study in the batch (else the API refuses with a 400).
+  const allOffered = !!b && b.periods.length > 1 && b.periods.length === b.model.rates.length;
   const mine = (board.data?.requests ?? []).find((r) => r.reviewer.id === user?.id && r.completedAt === null);
   const base = `/studies/${studyId}`;
 
@@ -188,12 +191,28 @@ export function BoardScreen() {
             {board.data.periods.length > 1 ? (
               <SegmentedControl
                 label="Show period"
-                options={[{ value: 'all', label: 'All' }, ...board.data.periods.map((p) => ({ value: String(p), label: `Period ${p}`, description: waves ? `${waves[p - 1]} to ${waves[p]}` : undefined }))]}
+                options={[
+                  { value: 'all', label: 'Every period' },
+                  ...board.data.periods.map((p) => ({ value: String(p), label: `Period ${p}`, description: waves ? `${waves[p - 1]} to ${waves[p]}` : undefined })),
+                  ...(allOffered ? [{ value: 'together', label: 'All periods together', description: 'statistics summed over periods' }] : []),
+                ]}
                 value={period}
                 onChange={setPeriod}
               />
             ) : null}
+            {together && b ? (
+              <Banner tone="info" testID="board-all-periods">
+                {`All periods together: each chain's statistics are summed over periods ${b.periods.join(', ')}, and so are the observed end waves'. One test over the whole study; a period that fits badly can hide behind one that fits well. Verdicts and comments stay with each period's cards.`}
+              </Banner>
+            ) : null}
             <View style={{ flexDirection: breakpoint === 'wide' ? 'row' : 'column', flexWrap: 'wrap', gap: space.s2 }}>
+              {together && b
+                ? b.layout.map((l) => (
+                    <View key={`${l.statistic}-all`} style={breakpoint === 'wide' ? { flexBasis: '48%', flexGrow: 1, minWidth: 0 } : undefined}>
+                      <TogetherCard studyId={studyId} batchId={batchId} statistic={l.statistic} label={l.label} periods={b.periods} />
+                    </View>
+                  ))
+                : null}
               {cards.map((card) => (
                 <View key={`${card.statistic}-${card.period}`} style={breakpoint === 'wide' ? { flexBasis: '48%', flexGrow: 1, minWidth: 0 } : undefined}>
                   <StatisticCard studyId={studyId} batchId={batchId} card={card} canReview={canReview} isLead={isLead} waves={waves} />

@@ -22,7 +22,7 @@ export function describeChart(chart: EnvelopeChartDto): string {
   const pct = (c: number) => `${Math.round(c * 100)}%`;
   const out = wide?.outside ?? [];
   const outNarrow = (narrow?.outside ?? []).filter((c) => !out.includes(c));
-  const parts = [`Envelope chart of the ${chart.label.toLowerCase()}, period ${chart.period}, ${chart.components.length} values.`];
+  const parts = [`Envelope chart of the ${chart.label.toLowerCase()}, ${chart.period === 'all' ? 'all periods together' : `period ${chart.period}`}, ${chart.components.length} values.`];
   parts.push(out.length ? `Observed outside the middle ${pct(wide!.coverage)} of simulations at ${out.join(', ')}.` : `Every observed value lies inside the middle ${pct(wide?.coverage ?? 0.9)} of simulations.`);
   if (outNarrow.length && narrow && narrow !== wide) parts.push(`Outside the middle ${pct(narrow.coverage)} only: ${outNarrow.join(', ')}.`);
   return parts.join(' ');

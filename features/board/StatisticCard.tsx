@@ -28,6 +28,42 @@ export function periodName(period: number, waves?: string[]): string {
   return from && to ? `period ${period} (${from} to ${to})` : `period ${period}`;
 }
 
+/**
+ * A statistic over all periods together (each chain's statistics summed over the periods, and the
+ * observed end waves' too): the chart and the test, read-only. Verdicts and comments stay per period.
+ */
+export function TogetherCard({ studyId, batchId, statistic, label, periods }: { studyId: number; batchId: number; statistic: string; label: string; periods: number[] }) {
+  const chart = useChart(studyId, batchId, statistic, 'all');
+  const c = chart.data;
+  const words = c ? pValueWords(c.pValue) : null;
+  const pTone = c ? (c.pValue < 0.05 ? 'fail' : c.pValue < 0.1 ? 'unsure' : 'pass') : 'pass';
+  const pIcon = pTone === 'fail' ? 'fail' : pTone === 'unsure' ? 'unsure' : 'pass';
+  return (
+    <Card testID={`card-${statistic}-all`} accessibilityLabel={`${label}, all periods together`} title={label} subtitle={`all periods together (${periods.join(' + ')})`}>
+      {chart.error ? <LoadError message={chart.error.message} onRetry={() => void chart.mutate()} /> : null}
+      {chart.isLoading ? <Loading label="Drawing the envelopes…" /> : null}
+      {c ? (
+        <>
+          <EnvelopeChart chart={c} />
+          <EnvelopeLegend chart={c} />
+          <View style={{ flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.s1 }}>
+            <Icon name={pIcon} size={20} color={colors[pTone]} />
+            <Text variant="bodyStrong" style={{ color: colors[pTone] }}>
+              {words!.short}
+            </Text>
+            <Text variant="figure" accessibilityLabel={`p-value ${formatPValue(c.pValue)}`}>
+              p = {formatPValue(c.pValue)}
+            </Text>
+          </View>
+          <Text>{words!.sentence}</Text>
+          <Text variant="muted">{c.reading}</Text>
+          {c.caution ? <Banner tone="caution">{c.caution}</Banner> : null}
+        </>
+      ) : null}
+    </Card>
+  );
+}
+
 export function StatisticCard({ studyId, batchId, card, canReview, isLead = false, waves }: { studyId: number; batchId: number; card: BoardCard; canReview: boolean; isLead?: boolean; waves?: string[] }) {
   const chart = useChart(studyId, batchId, card.statistic, card.period);
   const mutations = useBoardMutations(studyId, batchId);

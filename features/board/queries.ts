@@ -17,7 +17,7 @@ type Id = number | string;
 
 export const boardKeys = {
   board: (s: Id, b: Id) => `/studies/${s}/batches/${b}/board`,
-  chart: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/board/chart?statistic=${encodeURIComponent(statistic)}&period=${period}`,
+  chart: (s: Id, b: Id, statistic: string, period: number | 'all') => `/studies/${s}/batches/${b}/board/chart?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   history: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/verdicts/history?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   comments: (s: Id, b: Id, statistic: string, period: number) => `/studies/${s}/batches/${b}/comments?statistic=${encodeURIComponent(statistic)}&period=${period}`,
   /** Every key that belongs to one batch's review. */
@@ -28,7 +28,7 @@ export function useBoard(studyId: number | null, batchId: number | null) {
   return useSWR<BoardResponse, ApiError>(studyId != null && batchId != null ? boardKeys.board(studyId, batchId) : null);
 }
 
-export function useChart(studyId: number, batchId: number, statistic: string, period: number) {
+export function useChart(studyId: number, batchId: number, statistic: string, period: number | 'all') {
   return useSWR<EnvelopeChartDto, ApiError>(boardKeys.chart(studyId, batchId, statistic, period), { revalidateOnFocus: false });
 }
 

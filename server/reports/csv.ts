@@ -2,7 +2,8 @@
  * CSV exports of a fit report's numbers (RFC 4180: comma-separated, fields with commas, quotes or
  * line breaks quoted, CRLF line ends; text that would start a formula neutralised by
  * shared/csvSafe.ts): the goodness-of-fit table (one row per statistic, period and component, with
- * the newest sign-off and any acknowledged concerns and reason on every row) and the estimates table
+ * the newest sign-off and any acknowledged concerns and reason on every row; period "all" rows for all
+ * periods together) and the estimates table
  * (one row per parameter).
  */
 import { csvLine as line } from '../../shared/csvSafe';
@@ -49,6 +50,16 @@ export function gofCsv(report: ReportJson): string {
           ...signoffFields,
         ]),
       );
+    });
+  }
+  // All periods together (period "all"): the summed statistics; no verdicts, those stay per period.
+  for (const s of report.allPeriods ?? []) {
+    s.components.forEach((component, k) => {
+      const bands = coverages.flatMap((c) => {
+        const b = s.bands.find((x) => x.coverage === c)!;
+        return [b.lower[k], b.upper[k]];
+      });
+      rows.push(line([report.batch.id, s.statistic, 'all', component, s.observed[k], s.mean[k], s.sd[k], ...bands, s.pValue, s.pValueSimulatedOnly, s.distance, s.chains, '', '', '', '', ...signoffFields]));
     });
   }
   return rows.join('\r\n') + '\r\n';

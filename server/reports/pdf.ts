@@ -63,6 +63,31 @@ function statisticBlock(w: Writer, report: ReportJson, s: ReportStatisticJson): 
   w.rule();
 }
 
+/** All periods together: each statistic summed over the periods, chart and test (no verdicts). */
+function allPeriodsSection(w: Writer, report: ReportJson): void {
+  const { doc } = w;
+  w.need(280);
+  w.heading('All periods together');
+  w.text(
+    `Each chain's statistics summed over periods ${report.batch.periods.join(', ')}, and the observed end waves' too, then the same bands and test. One test over the whole study: a period that fits badly can hide behind one that fits well, so read it beside the periods. The verdicts above stay per period.`,
+    { size: 9, colour: C.muted, gap: 8 },
+  );
+  for (const s of report.allPeriods ?? []) {
+    w.need(230);
+    w.heading(`${s.label}, all periods together`, 3);
+    const y = doc.y;
+    drawEnvelope(doc, s, { x: w.left, y, w: w.width, h: 150 });
+    doc.y = y + 154;
+    legend(w, chartScaleOf(s.statistic), s.bands.map((b) => b.coverage));
+    doc.y += 4;
+    w.text(`p = ${formatPValue(s.pValue)} (Mahalanobis distance ${num(s.distance, 2)}, ${s.chains} chains): ${pValueWords(s.pValue).sentence}`, { font: 'bold', size: 9.5, gap: 2 });
+    w.text(s.reading, { size: 9, colour: C.ink, gap: 3 });
+    if (s.caution) w.text(`Caution: ${s.caution}`, { size: 8.5, colour: C.unsure, gap: 3 });
+    doc.y += 6;
+    w.rule();
+  }
+}
+
 function comparisonSection(w: Writer, cmp: CompareResponse): void {
   // Keep the heading with the start of its first table.
   w.need(220);
@@ -233,6 +258,7 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
     { size: 9, colour: C.muted, gap: 8 },
   );
   for (const s of report.statistics) statisticBlock(w, report, s);
+  if (report.allPeriods) allPeriodsSection(w, report);
 
   if (report.comparison) comparisonSection(w, report.comparison);
 

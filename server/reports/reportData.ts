@@ -8,12 +8,14 @@
 import { existsSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { DataSource } from 'typeorm';
-import type { ReportJson, ReportStatisticJson } from '../../shared/review';
+import type { ReportAllPeriodsJson, ReportJson, ReportStatisticJson } from '../../shared/review';
 import { parameterLabel } from '../../shared/models';
 import type { LoadedBatch } from '../batches/service';
 import { syncDb } from '../db/sync';
 import { compareItems, fitInfo } from '../review/compare';
 import type { GofCache } from '../review/gofData';
+import { ALL_PERIODS } from '../batches/gof';
+import { gofStoreFor } from '../batches/gofStore';
 import { commentsOf } from '../review/comments';
 import { changedSince, requireDone, verdictCounts, verdictsOf } from '../review/service';
 import { signoffsOf } from '../review/signoffs';
@@ -84,6 +86,26 @@ export function buildReport(
       .map((l) => ({ id: l.id, panels: l.panels, seed: l.seed, createdBy: l.createdBy, result: l.result })),
   }));
 
+  // All periods together: stored when the batch finished (the routes' gof.prepare computes it if missing).
+  const together = batch.summary.periods.length > 1 && batch.summary.periods.length === batch.model.rates.length ? gofStoreFor(dataSource).stored(batch.row.id, ALL_PERIODS) : null;
+  const allPeriods: ReportAllPeriodsJson[] | null = together
+    ? together.map(({ gof: g, sd }) => ({
+        statistic: g.statistic,
+        label: g.label,
+        components: g.components,
+        observed: g.observed,
+        mean: g.mean,
+        sd,
+        bands: g.bands.map((b) => ({ coverage: b.coverage, lower: b.lower, upper: b.upper })),
+        pValue: g.test.pValue,
+        pValueSimulatedOnly: g.test.pValueSimulatedOnly,
+        distance: g.test.distance,
+        chains: g.test.chains,
+        reading: g.reading,
+        caution: g.caution,
+      }))
+    : null;
+
   const signoffs = signoffsOf(db, batch.row.id);
   const others = compareWith.filter((id) => id !== batch.row.id);
   const comparison = others.length ? compareItems(dataSource, gof, studyId, [batch.row.id, ...others], []) : null;
@@ -120,6 +142,7 @@ export function buildReport(
       tauMax: fit?.results?.tauMax ?? null,
     },
     statistics,
+    allPeriods,
     counts: verdictCounts(db, batch),
     comparison,
     signoffs,

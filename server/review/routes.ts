@@ -62,6 +62,16 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
 
   router.get(`${B}/board/chart`, ...member('read'), async (req, res) => {
     const batch = batchOf(req);
+    if (req.query.period === 'all') {
+      // All periods together: the summed statistics, read-only (verdicts and comments stay per period).
+      const statistic = typeof req.query.statistic === 'string' ? req.query.statistic : '';
+      const ids = batch.layout.map((l) => l.statistic as string);
+      if (!ids.includes(statistic)) throw badRequest(`This batch has no statistic "${statistic}"; it has ${ids.join(', ')}.`);
+      requireDone(batch);
+      const charts = await gof.together(dataSource, batch);
+      res.json(charts.find((c) => c.statistic === statistic));
+      return;
+    }
     const card = cardQuery(req);
     checkCard(batch, card.statistic, card.period);
     requireDone(batch);

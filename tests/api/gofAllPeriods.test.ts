@@ -114,8 +114,27 @@ describe('GOF over all periods together', () => {
     expect(rows.map((r) => r.period)).toEqual([0, 1, 2]);
   });
 
+  it('the board chart and the report carry the same all-periods numbers', async () => {
+    const all = (await request(t.app).get(`${base()}/${fullId}/gof?statistic=triad_census&period=all`).set(bearer(reviewer))).body as GofResponse;
+    const chart = await request(t.app).get(`${base()}/${fullId}/board/chart?statistic=triad_census&period=all`).set(bearer(reviewer));
+    expect(chart.status).toBe(200);
+    expect(chart.body).toMatchObject({ period: 'all', pValue: all.test.pValue, observed: all.observed, mean: all.mean });
+    const report = await request(t.app).get(`${base()}/${fullId}/report.json`).set(bearer(reviewer));
+    expect(report.status).toBe(200);
+    const row = (report.body.allPeriods as { statistic: string; pValue: number; observed: number[] }[]).find((r) => r.statistic === 'triad_census')!;
+    expect(row.pValue).toBe(all.test.pValue);
+    expect(row.observed).toEqual(all.observed);
+    const csv = await request(t.app).get(`${base()}/${fullId}/report.csv?table=gof`).set(bearer(reviewer));
+    expect(csv.status).toBe(200);
+    const allRows = csv.text.split('\r\n').filter((l) => l.split(',')[2] === 'all');
+    expect(allRows).toHaveLength(all.components.length + ((report.body.allPeriods as { components: string[] }[]).find((r) => r.statistic === 'outdegree_distribution')!.components.length));
+    // A one-period batch of a two-period study has no all-periods part in its report.
+    const part = await request(t.app).get(`${base()}/${partId}/report.json`).set(bearer(reviewer));
+    expect(part.body.allPeriods).toBeNull();
+  });
+
   it('a batch without every period of the study gets a clear 400, and nothing is stored for it', async () => {
-    for (const path of ['gof?statistic=triad_census&period=all', 'gof/summary?period=all']) {
+    for (const path of ['gof?statistic=triad_census&period=all', 'gof/summary?period=all', 'board/chart?statistic=triad_census&period=all']) {
       const res = await request(t.app).get(`${base()}/${partId}/${path}`).set(bearer(reviewer));
       expect(res.status).toBe(400);
       expect(res.body.error.message).toBe('This batch simulated period 1 only; all periods together needs every period (the study has 2).');
