@@ -84,6 +84,7 @@ export type ApiErrorCode =
   | 'fit_not_running'
   | 'verdict_conflict'
   | 'acknowledgement_required'
+  | 'not_on_this_database'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */
