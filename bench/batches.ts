@@ -40,7 +40,7 @@ const RATE = 6;
 const fmt = (x: number, digits = 1) => x.toFixed(digits);
 
 /** A study with two waves of 50 invented crew members: wave 1 random, wave 2 simulated from it. */
-async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: number }> {
+export async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: number }> {
   await ds.query(`INSERT INTO "users" ("email", "name", "passwordHash", "isAdmin") VALUES ('bench@harbourside.example', 'Bench', 'x', 0)`);
   await ds.query(`INSERT INTO "studies" ("name", "description") VALUES ('Harbourside bench', '')`);
   const [{ id: userId }] = await ds.query(`SELECT "id" FROM "users" LIMIT 1`);
@@ -73,7 +73,7 @@ async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: num
   return { studyId, userId };
 }
 
-const body = (chains: number, seed: number): ParsedCreateBatchBody => ({
+export const benchBody = (chains: number, seed: number): ParsedCreateBatchBody => ({
   model: { rates: [RATE], effects: EFFECTS },
   chains,
   seed,
@@ -83,7 +83,7 @@ const body = (chains: number, seed: number): ParsedCreateBatchBody => ({
 async function timedBatch(ds: DataSource, ids: { studyId: number; userId: number }, workers: number, chains: number, seed: number): Promise<{ ms: number; batchId: number }> {
   const queue = jobQueueFor(ds, { workers });
   const t0 = performance.now();
-  const batchId = await createBatch(ds, { ...ids, body: body(chains, seed) });
+  const batchId = await createBatch(ds, { ...ids, body: benchBody(chains, seed) });
   const [{ jobId }] = await ds.query(`SELECT "jobId" FROM "batches" WHERE "id" = ?`, [batchId]);
   const state = await queue.whenSettled(jobId);
   if (state !== 'done') throw new Error(`bench: batch ${batchId} ended ${state}: ${queue.status(jobId)?.error}`);
@@ -101,7 +101,7 @@ const batchSection: BenchSection = {
       const ids = await makeStudy(ds);
 
       // Floor: the worker code in this thread, no queue, no storage.
-      const probe = await createBatch(ds, { ...ids, body: body(2, 1) });
+      const probe = await createBatch(ds, { ...ids, body: benchBody(2, 1) });
       await jobQueueFor(ds).whenSettled(Number((await ds.query(`SELECT "jobId" FROM "batches" WHERE "id" = ?`, [probe]))[0].jobId));
       await stopJobQueue(ds);
       const context = await loadBatchContext(ds, probe);

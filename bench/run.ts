@@ -3,11 +3,12 @@
  * To add a section, export a BenchSection[] from a file in bench/ and append it to SECTIONS.
  */
 import { batchSections } from './batches';
+import { distributedSections } from './distributed';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...webSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...distributedSections, ...estimateSections, ...webSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();
