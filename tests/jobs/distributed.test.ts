@@ -25,6 +25,8 @@ import { BullmqBackend, jobQueueFor, stopJobQueue, syncDb } from '../../server/j
 import type { ParsedCreateBatchBody } from '../../shared/batches';
 import { AUX_STATISTIC_IDS } from '../../shared/auxStatistics';
 import { hasRedis, startCluster, type Cluster } from './fixtures/cluster';
+import request from 'supertest';
+import { bearer, makeTestApp, STATS } from '../api/helpers';
 
 const MODEL = {
   rates: [2.5, 2.5],
@@ -93,7 +95,8 @@ describe.skipIf(!hasRedis())('distributed backend: BullMQ on Redis, worker proce
       cluster.startWorker(1, { WAVEFIT_LOCK_MS: '2000' }),
       cluster.startWorker(1, { WAVEFIT_LOCK_MS: '2000' }),
     ]);
-    const watcher = new QueueEvents(queueName, { connection: new IORedis(cluster.url, { maxRetriesPerRequest: null }) });
+    const watcherRedis = new IORedis(cluster.url, { maxRetriesPerRequest: null });
+    const watcher = new QueueEvents(queueName, { connection: watcherRedis });
     await watcher.waitUntilReady();
     let stalled = 0;
     watcher.on('stalled', () => stalled++);
@@ -118,7 +121,7 @@ describe.skipIf(!hasRedis())('distributed backend: BullMQ on Redis, worker proce
     // The killed worker's chunk was found stalled and computed again by the other one.
     expect(stalled).toBeGreaterThanOrEqual(1);
     await watcher.close();
-    watcher.disconnect?.();
+    watcherRedis.disconnect();
     await stopJobQueue(ds);
 
     // 3. Nothing lost: one stored chunk row per planned chunk, the job's counters complete.
@@ -156,4 +159,46 @@ describe.skipIf(!hasRedis())('distributed backend: BullMQ on Redis, worker proce
     expect(queue.status(jobId)!.error).toMatch(/chunk 2 failed: test-sum: this chunk fails on purpose/);
     await stopJobQueue(ds);
   }, 120_000);
+
+  it('a fit runs on a remote worker through the API and gives the same estimates as the embedded threads with the same seed', async () => {
+    const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+    const fitWith = async (remote: boolean) => {
+      const t = await makeTestApp();
+      try {
+        if (remote) jobQueueFor(t.dataSource, { backend: new BullmqBackend({ url: cluster.url, queueName }) });
+        else jobQueueFor(t.dataSource, { workers: 1 });
+        const stats = await t.tokenFor(STATS);
+        const base = `/api/studies/${t.seed.studyId}/models`;
+        const model = await request(t.app).post(base).set(bearer(stats)).send({
+          name: 'Remote fit',
+          description: '',
+          rates: [{ period: 1, estimate: true }, { period: 2, estimate: true }],
+          effects: [{ id: 'density', estimate: true }, { id: 'reciprocity', estimate: true }],
+        });
+        expect(model.status).toBe(201);
+        const start = await request(t.app).post(`${base}/${model.body.model.id}/fits`).set(bearer(stats)).send({ seed: 515, phase3Runs: 100 });
+        expect(start.status).toBe(201);
+        let fit = start.body.fit;
+        for (let i = 0; i < 2400 && !['done', 'failed', 'cancelled'].includes(fit.state); i++) {
+          await sleep(50);
+          fit = (await request(t.app).get(`${base}/${model.body.model.id}/fits/${fit.id}`).set(bearer(stats))).body.fit;
+        }
+        expect(fit.state).toBe('done');
+        const [job] = await t.dataSource.query(`SELECT "log" FROM "jobs" WHERE "id" = (SELECT "jobId" FROM "fits" WHERE "id" = ?)`, [fit.id]);
+        expect(String(job.log)).toMatch(remote ? /remote workers \(BullMQ/ : /started with 1 worker/);
+        return fit.results;
+      } finally {
+        await stopJobQueue(t.dataSource);
+        await t.close();
+      }
+    };
+    const worker = await cluster.startWorker(1);
+    const embedded = await fitWith(false);
+    const remote = await fitWith(true);
+    await cluster.kill(worker);
+    expect(remote.parameters.length).toBe(4);
+    // Everything but the wall-clock seconds the fit took.
+    expect({ ...remote, seconds: 0 }).toEqual({ ...embedded, seconds: 0 });
+    expect(remote.seconds).toBeGreaterThan(0);
+  }, 240_000);
 });
