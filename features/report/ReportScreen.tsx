@@ -6,7 +6,7 @@
  */
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { useState } from 'react';
-import { Platform, Pressable, View } from 'react-native';
+import { View } from 'react-native';
 import { MIN_ACK_REASON } from '../../shared/review';
 import { getApiBase, messageOf } from '../api/client';
 import { useBatches } from '../batches/queries';
@@ -21,7 +21,7 @@ import { Card } from '../ui/Card';
 import { Checkbox } from '../ui/Checkbox';
 import { EmptyState } from '../ui/EmptyState';
 import { formatDate } from '../ui/format';
-import { Icon, type IconName } from '../ui/icons';
+import { Icon } from '../ui/icons';
 import { Loading, LoadError } from '../ui/Loading';
 import { Screen, Section } from '../ui/Screen';
 import { SegmentedControl } from '../ui/SegmentedControl';
@@ -29,40 +29,11 @@ import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
 import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
-import { fonts, radius, space, touchTarget } from '../ui/tokens';
-import { useInteraction } from '../ui/useInteraction';
+import { fonts, space } from '../ui/tokens';
+import { DownloadLink } from '../ui/DownloadLink';
 
 const time = (iso: string) => `${formatDate(iso)}, ${new Date(iso).toISOString().slice(11, 16)} UTC`;
 
-/** A download link drawn as a button (an <a download> on the web, so the browser saves the file). */
-function DownloadLink({ href, label, accessibilityLabel, icon = 'outbox' }: { href: string; label: string; accessibilityLabel: string; icon?: IconName }) {
-  const { hovered, focused, handlers } = useInteraction();
-  const webProps = Platform.OS === 'web' ? ({ href, hrefAttrs: { download: '' } } as object) : {};
-  return (
-    <Pressable
-      {...handlers}
-      {...webProps}
-      accessibilityRole="link"
-      accessibilityLabel={accessibilityLabel}
-      onPress={Platform.OS === 'web' ? undefined : () => undefined}
-      style={{
-        minHeight: touchTarget,
-        paddingHorizontal: space.s2,
-        flexDirection: 'row',
-        alignItems: 'center',
-        gap: space.s1,
-        borderRadius: radius.sm,
-        borderWidth: 1,
-        borderColor: colors.ruleStrong,
-        backgroundColor: hovered ? colors.surfaceSunk : colors.surface,
-        ...(focused ? { outlineColor: colors.focus, outlineWidth: 2, outlineStyle: 'solid' as const, outlineOffset: 2 } : null),
-      }}
-    >
-      <Icon name={icon} size={18} color={colors.accent} />
-      <Text style={{ color: colors.accent, fontFamily: fonts.textBold }}>{label}</Text>
-    </Pressable>
-  );
-}
 
 export function ReportScreen() {
   const params = useLocalSearchParams<{ studyId: string; batch?: string; compare?: string }>();
