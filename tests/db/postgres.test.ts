@@ -111,6 +111,24 @@ describe.skipIf(!hasPostgres())('PostgreSQL', () => {
 });
 
 describe('database settings', () => {
+  it('every migration runs its SQL through ddl() (so it works on PostgreSQL too)', async () => {
+    const { readdirSync, readFileSync, statSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const root = join(__dirname, '../../server');
+    const files: string[] = [];
+    const walk = (dir: string) => {
+      for (const e of readdirSync(dir)) {
+        const p = join(dir, e);
+        if (statSync(p).isDirectory()) walk(p);
+        else if (/migration\.ts$/.test(e) || (dir.endsWith('migrations') && e.endsWith('.ts') && e !== 'ddl.ts')) files.push(p);
+      }
+    };
+    walk(root);
+    expect(files.length).toBeGreaterThanOrEqual(8);
+    const raw = files.filter((f) => /\bq\.query\(/.test(readFileSync(f, 'utf8'))).map((f) => f.slice(root.length + 1));
+    expect(raw).toEqual([]);
+  });
+
   it('SQLite unless DATABASE_URL names PostgreSQL; wrong settings are refused with a plain message', async () => {
     const { postgresUrlFromEnv } = await import('../../server/config');
     expect(postgresUrlFromEnv({})).toBeNull();
