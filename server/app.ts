@@ -18,6 +18,7 @@ import type { AppDeps } from './deps';
 import { devRouter } from './dev/routes';
 import { healthRouter } from './health/routes';
 import { invitationsRouter } from './invitations/routes';
+import { lineupsRouter } from './lineups/routes';
 import { studiesRouter } from './studies/routes';
 import { teamRouter } from './team/routes';
 
@@ -64,6 +65,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', modelsRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(lineupsRouter(routeDeps));
   api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
