@@ -73,7 +73,7 @@ export async function makeStudy(ds: DataSource): Promise<{ studyId: number; user
   return { studyId, userId };
 }
 
-export const benchBody = (chains: number, seed: number): ParsedCreateBatchBody => ({
+export const body = (chains: number, seed: number): ParsedCreateBatchBody => ({
   model: { rates: [RATE], effects: EFFECTS },
   chains,
   seed,
@@ -83,7 +83,7 @@ export const benchBody = (chains: number, seed: number): ParsedCreateBatchBody =
 async function timedBatch(ds: DataSource, ids: { studyId: number; userId: number }, workers: number, chains: number, seed: number): Promise<{ ms: number; batchId: number }> {
   const queue = jobQueueFor(ds, { workers });
   const t0 = performance.now();
-  const batchId = await createBatch(ds, { ...ids, body: benchBody(chains, seed) });
+  const batchId = await createBatch(ds, { ...ids, body: body(chains, seed) });
   const [{ jobId }] = await ds.query(`SELECT "jobId" FROM "batches" WHERE "id" = ?`, [batchId]);
   const state = await queue.whenSettled(jobId);
   if (state !== 'done') throw new Error(`bench: batch ${batchId} ended ${state}: ${queue.status(jobId)?.error}`);
@@ -101,7 +101,7 @@ const batchSection: BenchSection = {
       const ids = await makeStudy(ds);
 
       // Floor: the worker code in this thread, no queue, no storage.
-      const probe = await createBatch(ds, { ...ids, body: benchBody(2, 1) });
+      const probe = await createBatch(ds, { ...ids, body: body(2, 1) });
       await jobQueueFor(ds).whenSettled(Number((await ds.query(`SELECT "jobId" FROM "batches" WHERE "id" = ?`, [probe]))[0].jobId));
       await stopJobQueue(ds);
       const context = await loadBatchContext(ds, probe);

@@ -14,7 +14,7 @@ import { createBatch } from '../server/batches/service';
 import { openDataSource } from '../server/db/dataSource';
 import { BullmqBackend, jobQueueFor, stopJobQueue, syncDb, type JobQueueOptions } from '../server/jobs';
 import { hasRedis, startCluster } from '../tests/jobs/fixtures/cluster';
-import { benchBody, makeStudy } from './batches';
+import { body as benchBody, makeStudy } from './batches';
 import type { BenchSection } from './engine';
 
 const CHAINS = 4000;
