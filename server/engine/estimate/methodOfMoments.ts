@@ -35,10 +35,35 @@ import { createSampler, fmt, fmtVec } from './sampler';
 import {
   EstimationCancelled,
   EstimationFailed,
+  DEFAULT_PHASE3_DERIVATIVE_RUNS,
+  isConverged,
+  phase3Key,
   type EstimationResult,
+  type RoundSummary,
   type EstimatorOptions,
   type MomentProblem,
 } from './moments';
+
+/**
+ * The published Phase 2 rules (Snijders 2001, section on the Robbins-Monro algorithm; METHODS 4.3):
+ * sub-phase k has gain a_k = a_1 2^-(k-1) and runs at least N_k- = 2^(4(k-1)/3) (7 + p) iterations
+ * (rounded up) and at most N_k+ = N_k- + extra (200 by default).
+ */
+export function subphaseRule(k: number, p: number, a1 = 0.2, extra = 200): { gain: number; minLength: number; maxLength: number } {
+  if (!(Number.isInteger(k) && k >= 1)) throw new Error(`estimate: sub-phase numbers start at 1, got ${String(k)}`);
+  const minLength = Math.ceil(Math.pow(2, (4 * (k - 1)) / 3) * (7 + p) - 1e-9);
+  return { gain: a1 * Math.pow(2, -(k - 1)), minLength, maxLength: minLength + extra };
+}
+
+/**
+ * Whether a sub-phase ends after `count` iterations: at its maximum, or once its minimum is reached and,
+ * for every coordinate, the running sum over the sub-phase of the products of successive deviations
+ * (Z_N - z_obs)(Z_N-1 - z_obs) is negative (the process oscillates around the root).
+ */
+export function subphaseEnds(count: number, minLength: number, maxLength: number, oscillation: ReadonlyArray<number>): boolean {
+  if (count >= maxLength) return true;
+  return count >= minLength && oscillation.every((o) => o < 0);
+}
 
 /**
  * Run the three phases. Throws EstimationCancelled when `shouldCancel` says so and EstimationFailed
@@ -111,7 +136,7 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
   } else {
     log(`Phase 1: ${n1} runs at the starting values ${fmtVec(theta)}, derivatives by finite differences.`);
     let runs1 = n1;
-    let ph1 = sampleWithDerivative(theta, 1, runs1);
+    let ph1 = sampleWithDerivative(theta, 1, runs1, { progressPhase: 1 });
     // With common random numbers a small perturbation may change no choice at all in a short Phase 1,
     // leaving a zero (or, by noise, negative) self-derivative. Lengthen Phase 1 (the same streams plus
     // new ones, so it stays reproducible) up to 8 times before giving up.
@@ -119,7 +144,7 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     while (unresolved() && runs1 < 8 * n1) {
       runs1 *= 2;
       log(`Phase 1: a self-derivative was not positive; lengthening Phase 1 to ${runs1} runs.`);
-      ph1 = sampleWithDerivative(theta, 1, runs1);
+      ph1 = sampleWithDerivative(theta, 1, runs1, { progressPhase: 1 });
     }
     const m1 = ph1.zs[0].map((_, k) => ph1.zs.reduce((s, z) => s + z[k], 0) / ph1.zs.length);
     mean1 = m1;
@@ -188,9 +213,7 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
   const phase2Iterations: number[] = [];
   let iteration = 0;
   for (let sub = 1; sub <= subphases; sub++) {
-    const gain = a1 * Math.pow(2, -(sub - 1));
-    const minLength = Math.ceil(Math.pow(2, (4 * (sub - 1)) / 3) * (7 + p));
-    const maxLength = minLength + extra;
+    const { gain, minLength, maxLength } = subphaseRule(sub, p, a1, extra);
     const sum = new Array<number>(p).fill(0);
     const oscillation = new Array<number>(p).fill(0);
     let previous: number[] | null = null;
@@ -211,7 +234,7 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
       theta = theta.map((t, k) => t - delta[k]);
       checkTheta(theta, `in Phase 2 sub-phase ${sub}, iteration ${count}`);
       progress({ phase: 2, subphase: sub, iteration: count, planned: maxLength, theta: theta.slice() });
-      if (count >= minLength && oscillation.every((o) => o < 0)) break;
+      if (subphaseEnds(count, minLength, maxLength, oscillation)) break;
     }
     theta = sum.map((s) => s / count);
     checkTheta(theta, `at the end of Phase 2 sub-phase ${sub}`);
@@ -219,23 +242,56 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     log(`Sub-phase ${sub} ended after ${count} iterations; average theta = ${fmtVec(theta)}.`);
   }
 
-  // ---------- Phase 3 ----------
+  // ---------- Phase 3, and continuation rounds ----------
   currentPhase = 3;
-  log(`Phase 3: ${n3} runs at the estimates for standard errors and convergence.`);
-  const ph3 = sampleWithDerivative(theta, 3, n3);
-  const { mean, cov: sigma } = sampleCovariance(ph3.zs);
-  const d3 = ph3.d;
-  const dev = mean.map((m, k) => m - target[k]);
-  const convergenceT = dev.map((dk, k) => {
-    const sd = Math.sqrt(sigma[k][k]);
-    if (sd > 0) return dk / sd;
-    return dk === 0 ? 0 : Math.sign(dk) * Infinity;
-  });
-  const { inverse: sigmaPlus, rank } = symmetricPseudoInverse(sigma);
-  if (rank < p) warnings.push(`The simulated statistics are linearly dependent (rank ${rank} of ${p}).`);
-  let quad = 0;
-  for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) quad += dev[i] * sigmaPlus[i][j] * dev[j];
-  const tauMax = Math.sqrt(Math.max(quad, 0));
+  const derivativeRuns = Math.min(n3, options.phase3DerivativeRuns ?? DEFAULT_PHASE3_DERIVATIVE_RUNS);
+  if (!(derivativeRuns >= 2)) throw new Error('estimate: Phase 3 needs at least 2 runs with derivatives');
+  // Continuation rounds add half as many derivative runs to the pooled matrix.
+  const laterDerivativeRuns = Math.max(2, Math.ceil(derivativeRuns / 2));
+  const maxRounds = options.maxRounds ?? 1;
+  if (!(Number.isInteger(maxRounds) && maxRounds >= 1)) throw new Error(`estimate: maxRounds must be a whole number of at least 1, got ${String(maxRounds)}`);
+  const rounds: RoundSummary[] = [];
+  // The derivative matrix pooled over the rounds' Phase 3s (all at estimates a fraction of a standard
+  // error apart): sums of the per-run difference quotients and their squares, and the run count.
+  const dSum = zeros(p);
+  const dSq = zeros(p);
+  let dRuns = 0;
+  const checks: Array<{ theta: number[]; dev: number[] }> = [];
+  let check = phase3Check(theta, 1);
+  for (;;) {
+    checks.push({ theta: theta.slice(), dev: check.dev });
+    rounds.push({ theta: theta.slice(), maxAbsT: check.maxAbsT, tauMax: check.tauMax, converged: check.converged });
+    if (check.converged || rounds.length >= maxRounds) break;
+    // Continuation (METHODS 4.3: rerun from the estimates when a threshold is missed). Each Phase 3 has
+    // the form of a Phase 1 with many runs, so it gives a Newton estimate of the root,
+    // theta_r - D^-1 (mean Z_r - z_obs), with error covariance D^-1 Sigma D^-T / N3 (independent across
+    // rounds: fresh streams). The next round starts from the average of these estimates over the rounds
+    // so far, with the pooled derivative matrix D (our choice; the estimates lie a fraction of a standard
+    // error apart, where Z is close to linear in theta).
+    let next: number[] | null = null;
+    try {
+      const roots = checks.map((c) => {
+        const step = solve(check.d, c.dev);
+        return c.theta.map((t, k) => t - step[k]);
+      });
+      next = theta.map((_, k) => roots.reduce((s, r) => s + r[k], 0) / roots.length);
+    } catch {
+      log('The derivative matrix is singular; no continuation round is possible.');
+    }
+    if (next === null || !next.every(Number.isFinite)) break;
+    const delta = capStep(
+      theta.map((t, k) => t - next![k]),
+      theta,
+    );
+    theta = theta.map((t, k) => t - delta[k]);
+    checkTheta(theta, `in continuation round ${rounds.length + 1}`);
+    log(`Not converged yet (max |t| ${fmt(check.maxAbsT)}, tau_max ${fmt(check.tauMax)}); round ${rounds.length + 1} continues from ${fmtVec(theta)}.`);
+    check = phase3Check(theta, rounds.length + 1);
+  }
+  const { mean, sigma, convergenceT, tauMax } = check;
+  const d3 = check.d;
+  const derivativeSE = check.se;
+  if (check.rank < p) warnings.push(`The simulated statistics are linearly dependent (rank ${check.rank} of ${p}).`);
   const cond = conditionNumber(d3);
   let covariance: Matrix | null = null;
   let correlation: Matrix | null = null;
@@ -258,9 +314,50 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     warnings.push(`The derivative matrix is nearly singular (condition number ${fmt(cond)}); standard errors are unreliable.`);
   }
   log(
-    `Phase 3 done: max |t| = ${fmt(Math.max(...convergenceT.map(Math.abs)))}, tau_max = ${fmt(tauMax)}, ` +
+    `Phase 3 done after ${rounds.length} round${rounds.length === 1 ? '' : 's'}: max |t| = ${fmt(check.maxAbsT)}, tau_max = ${fmt(tauMax)}, ` +
       `condition number ${fmt(cond)}.`,
   );
+
+  /** One Phase 3 at theta: N3 runs for the mean and covariance, derivatives on the first ones, pooled over rounds. */
+  function phase3Check(at: number[], round: number) {
+    const withD = round > 1 ? laterDerivativeRuns : derivativeRuns;
+    log(`Phase 3${round > 1 ? ` (round ${round})` : ''}: ${n3} runs at the estimates, ${withD} of them with finite-difference derivatives.`);
+    const sample = sampleWithDerivative(at, phase3Key(round), n3, { derivativeRuns: withD, progressPhase: 3, progressSubphase: round > 1 ? round : 0 });
+    dRuns += sample.derivativeRuns;
+    for (let k = 0; k < p; k++) for (let l = 0; l < p; l++) {
+      dSum[k][l] += sample.d[k][l] * sample.derivativeRuns;
+      dSq[k][l] += sample.sumSquares[k][l];
+    }
+    const d = dSum.map((row) => row.map((v) => v / dRuns));
+    const se = d.map((row, k) =>
+      row.map((m, l) => (dRuns > 1 ? Math.sqrt(Math.max(0, (dSq[k][l] - dRuns * m * m) / (dRuns - 1)) / dRuns) : NaN)),
+    );
+    const { mean: m, cov } = sampleCovariance(sample.zs);
+    const deviation = m.map((v, k) => v - target[k]);
+    const ts = deviation.map((dk, k) => {
+      const sd = Math.sqrt(cov[k][k]);
+      if (sd > 0) return dk / sd;
+      return dk === 0 ? 0 : Math.sign(dk) * Infinity;
+    });
+    const { inverse: sigmaPlus, rank } = symmetricPseudoInverse(cov);
+    let quad = 0;
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) quad += deviation[i] * sigmaPlus[i][j] * deviation[j];
+    const tau = Math.sqrt(Math.max(quad, 0));
+    const maxAbsT = Math.max(...ts.map(Math.abs));
+    return {
+      mean: m,
+      sigma: cov,
+      dev: deviation,
+      convergenceT: ts,
+      tauMax: tau,
+      maxAbsT,
+      rank,
+      d,
+      se,
+      converged: isConverged({ convergenceT: ts, tauMax: tau }),
+    };
+  }
+
   return {
     theta,
     standardErrors,
@@ -270,11 +367,12 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     tauMax,
     conditionNumber: cond,
     derivative: d3,
-    derivativeSE: ph3.se,
+    derivativeSE,
     meanStatistics: mean,
     statisticCovariance: sigma,
     target,
     phase2Iterations,
+    rounds,
     simulatorCalls: runner.calls,
     simulatedPeriods: runner.calls * problem.periodsPerRun,
     warnings,
