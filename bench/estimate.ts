@@ -169,7 +169,7 @@ const convergenceSection: BenchSection = {
           tally.rounds.push(fit.rounds);
           if (fit.converged) tally.converged++;
           const maxT = Math.max(...fit.raw.convergenceT.map(Math.abs));
-          line.push(`${which} ${fit.converged ? 'conv.' : 'NOT  '} |t| ${maxT.toFixed(3)} tau ${fit.tauMax.toFixed(3)} ${seconds.toFixed(1)} s ${fit.rounds}r`);
+          line.push(`${which} ${fit.converged ? 'conv.' : 'NOT  '} |t| ${maxT.toFixed(3)} tau ${fit.tauMax.toFixed(3)} ${seconds.toFixed(1)} s ${fit.simulatedPeriods} per. ${fit.rounds}r`);
         } catch (e) {
           tally.seconds += (performance.now() - t0) / 1000;
           tally.failed++;

@@ -60,6 +60,13 @@ export function subphaseRule(k: number, p: number, a1 = 0.2, extra = 200): { gai
  * for every coordinate, the running sum over the sub-phase of the products of successive deviations
  * (Z_N - z_obs)(Z_N-1 - z_obs) is negative (the process oscillates around the root).
  */
+/**
+ * Continuation rounds average their Newton estimates of the root and their derivative matrices only
+ * over consecutive rounds whose check had tau_max below this (our choice: within about one standard
+ * deviation of the observed statistics, where the moment function is close to linear).
+ */
+export const NEAR_ROOT_TAU = 1;
+
 export function subphaseEnds(count: number, minLength: number, maxLength: number, oscillation: ReadonlyArray<number>): boolean {
   if (count >= maxLength) return true;
   return count >= minLength && oscillation.every((o) => o < 0);
@@ -257,8 +264,14 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
   const dSq = zeros(p);
   let dRuns = 0;
   const checks: Array<{ theta: number[]; dev: number[] }> = [];
+  let lastNear = true;
   let check = phase3Check(theta, 1);
   for (;;) {
+    // Pool only over rounds near the root (tau_max below NEAR_ROOT_TAU), where Z is close to linear
+    // in theta; a round farther off starts the pool afresh.
+    const near = check.tauMax < NEAR_ROOT_TAU;
+    if (!near || !lastNear) checks.length = 0;
+    lastNear = near;
     checks.push({ theta: theta.slice(), dev: check.dev });
     rounds.push({ theta: theta.slice(), maxAbsT: check.maxAbsT, tauMax: check.tauMax, converged: check.converged });
     if (check.converged || rounds.length >= maxRounds) break;
@@ -323,6 +336,20 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     const withD = round > 1 ? laterDerivativeRuns : derivativeRuns;
     log(`Phase 3${round > 1 ? ` (round ${round})` : ''}: ${n3} runs at the estimates, ${withD} of them with finite-difference derivatives.`);
     const sample = sampleWithDerivative(at, phase3Key(round), n3, { derivativeRuns: withD, progressPhase: 3, progressSubphase: round > 1 ? round : 0 });
+    const { mean: m, cov } = sampleCovariance(sample.zs);
+    const deviation = m.map((v, k) => v - target[k]);
+    const { inverse: sigmaPlus, rank } = symmetricPseudoInverse(cov);
+    let quad = 0;
+    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) quad += deviation[i] * sigmaPlus[i][j] * deviation[j];
+    const tau = Math.sqrt(Math.max(quad, 0));
+    // The derivative matrix is pooled over the rounds near the root only (as the Newton estimates are).
+    if (!(tau < NEAR_ROOT_TAU) || !lastNear) {
+      for (let k = 0; k < p; k++) for (let l = 0; l < p; l++) {
+        dSum[k][l] = 0;
+        dSq[k][l] = 0;
+      }
+      dRuns = 0;
+    }
     dRuns += sample.derivativeRuns;
     for (let k = 0; k < p; k++) for (let l = 0; l < p; l++) {
       dSum[k][l] += sample.d[k][l] * sample.derivativeRuns;
@@ -332,17 +359,11 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     const se = d.map((row, k) =>
       row.map((m, l) => (dRuns > 1 ? Math.sqrt(Math.max(0, (dSq[k][l] - dRuns * m * m) / (dRuns - 1)) / dRuns) : NaN)),
     );
-    const { mean: m, cov } = sampleCovariance(sample.zs);
-    const deviation = m.map((v, k) => v - target[k]);
     const ts = deviation.map((dk, k) => {
       const sd = Math.sqrt(cov[k][k]);
       if (sd > 0) return dk / sd;
       return dk === 0 ? 0 : Math.sign(dk) * Infinity;
     });
-    const { inverse: sigmaPlus, rank } = symmetricPseudoInverse(cov);
-    let quad = 0;
-    for (let i = 0; i < p; i++) for (let j = 0; j < p; j++) quad += deviation[i] * sigmaPlus[i][j] * deviation[j];
-    const tau = Math.sqrt(Math.max(quad, 0));
     const maxAbsT = Math.max(...ts.map(Math.abs));
     return {
       mean: m,
