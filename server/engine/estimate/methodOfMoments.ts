@@ -219,35 +219,41 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
   currentPhase = 2;
   const phase2Iterations: number[] = [];
   let iteration = 0;
-  for (let sub = 1; sub <= subphases; sub++) {
-    const { gain, minLength, maxLength } = subphaseRule(sub, p, a1, extra);
-    const sum = new Array<number>(p).fill(0);
-    const oscillation = new Array<number>(p).fill(0);
-    let previous: number[] | null = null;
-    let count = 0;
-    log(`Phase 2 sub-phase ${sub}: gain ${fmt(gain)}, ${minLength} to ${maxLength} iterations.`);
-    while (count < maxLength) {
-      const z = runner.run(theta, 2, iteration);
-      iteration++;
-      count++;
-      for (let k = 0; k < p; k++) sum[k] += theta[k];
-      const dev = z.map((v, k) => v - target[k]);
-      if (previous !== null) for (let k = 0; k < p; k++) oscillation[k] += dev[k] * previous[k];
-      previous = dev;
-      const delta = capStep(
-        direction(dev).map((dk) => gain * dk),
-        theta,
-      );
-      theta = theta.map((t, k) => t - delta[k]);
-      checkTheta(theta, `in Phase 2 sub-phase ${sub}, iteration ${count}`);
-      progress({ phase: 2, subphase: sub, iteration: count, planned: maxLength, theta: theta.slice() });
-      if (subphaseEnds(count, minLength, maxLength, oscillation)) break;
+  /** The Phase 2 sub-phases from `from`; returns the average over the last sub-phase. */
+  const phase2 = (from: number[], report: boolean): number[] => {
+    let at = from.slice();
+    for (let sub = 1; sub <= subphases; sub++) {
+      const { gain, minLength, maxLength } = subphaseRule(sub, p, a1, extra);
+      const sum = new Array<number>(p).fill(0);
+      const oscillation = new Array<number>(p).fill(0);
+      let previous: number[] | null = null;
+      let count = 0;
+      log(`Phase 2 sub-phase ${sub}: gain ${fmt(gain)}, ${minLength} to ${maxLength} iterations.`);
+      while (count < maxLength) {
+        const z = runner.run(at, 2, iteration);
+        iteration++;
+        count++;
+        for (let k = 0; k < p; k++) sum[k] += at[k];
+        const dev = z.map((v, k) => v - target[k]);
+        if (previous !== null) for (let k = 0; k < p; k++) oscillation[k] += dev[k] * previous[k];
+        previous = dev;
+        const delta = capStep(
+          direction(dev).map((dk) => gain * dk),
+          at,
+        );
+        at = at.map((t, k) => t - delta[k]);
+        checkTheta(at, `in Phase 2 sub-phase ${sub}, iteration ${count}`);
+        if (report) progress({ phase: 2, subphase: sub, iteration: count, planned: maxLength, theta: at.slice() });
+        if (subphaseEnds(count, minLength, maxLength, oscillation)) break;
+      }
+      at = sum.map((v) => v / count);
+      checkTheta(at, `at the end of Phase 2 sub-phase ${sub}`);
+      if (report) phase2Iterations.push(count);
+      log(`Sub-phase ${sub} ended after ${count} iterations; average theta = ${fmtVec(at)}.`);
     }
-    theta = sum.map((s) => s / count);
-    checkTheta(theta, `at the end of Phase 2 sub-phase ${sub}`);
-    phase2Iterations.push(count);
-    log(`Sub-phase ${sub} ended after ${count} iterations; average theta = ${fmtVec(theta)}.`);
-  }
+    return at;
+  };
+  theta = phase2(theta, true);
 
   // ---------- Phase 3, and continuation rounds ----------
   currentPhase = 3;
@@ -281,6 +287,17 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
     // rounds: fresh streams). The next round starts from the average of these estimates over the rounds
     // so far, with the pooled derivative matrix D (our choice; the estimates lie a fraction of a standard
     // error apart, where Z is close to linear in theta).
+    if (!near) {
+      // Far from the root (tau_max >= NEAR_ROOT_TAU), where a Newton step may overshoot: rerun Phase 2
+      // from the estimates (METHODS 4.3, Snijders 2001), its gains scaled by this Phase 3's derivatives.
+      for (let k = 0; k < p; k++) if (check.d[k][k] > 0) diag[k] = check.d[k][k];
+      log(`Not converged yet (max |t| ${fmt(check.maxAbsT)}, tau_max ${fmt(check.tauMax)}); round ${rounds.length + 1} reruns Phase 2 from the estimates.`);
+      currentPhase = 2;
+      theta = phase2(theta, false);
+      currentPhase = 3;
+      check = phase3Check(theta, rounds.length + 1);
+      continue;
+    }
     let next: number[] | null = null;
     try {
       const roots = checks.map((c) => {
@@ -333,7 +350,8 @@ export function estimate(problem: MomentProblem, options: EstimatorOptions): Est
 
   /** One Phase 3 at theta: N3 runs for the mean and covariance, derivatives on the first ones, pooled over rounds. */
   function phase3Check(at: number[], round: number) {
-    const withD = round > 1 ? laterDerivativeRuns : derivativeRuns;
+    // A round after one far from the root starts a new derivative pool, so it gets the full number.
+    const withD = round > 1 && lastNear ? laterDerivativeRuns : derivativeRuns;
     log(`Phase 3${round > 1 ? ` (round ${round})` : ''}: ${n3} runs at the estimates, ${withD} of them with finite-difference derivatives.`);
     const sample = sampleWithDerivative(at, phase3Key(round), n3, { derivativeRuns: withD, progressPhase: 3, progressSubphase: round > 1 ? round : 0 });
     const { mean: m, cov } = sampleCovariance(sample.zs);
