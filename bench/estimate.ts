@@ -19,7 +19,8 @@
  *    sqrt(q (1 - q) / D), time and simulated periods per fit, rounds taken.
  *
  * Set BENCH_COVERAGE_DATASETS to change the number of datasets of section 2 (default 20) and
- * BENCH_CONVERGENCE_DATASETS for section 3 (default 10; the full study is 40).
+ * BENCH_CONVERGENCE_DATASETS for section 3 (default 10; the full study is 40); for section 3,
+ * BENCH_CONVERGENCE_ROUNDS tries another round budget and BENCH_CONVERGENCE_NOW_ONLY=1 skips "before".
  */
 import { DEFAULT_ROUND_BUDGET, fitSaom, type FitOptions, type SaomFit, type SaomProblemInput } from '../server/engine/estimate';
 import { simulatedPanel, TRUE_BETA, TRUE_EFFECTS, type PanelOptions } from '../tests/estimate/fixtures';
@@ -158,7 +159,9 @@ const convergenceSection: BenchSection = {
         seed: 3_000 + d,
       };
       const line: string[] = [];
-      for (const [which, options] of [['before', BEFORE], ['now', PRODUCT]] as const) {
+      const budget = Number(process.env.BENCH_CONVERGENCE_ROUNDS ?? DEFAULT_ROUND_BUDGET);
+      const settings = [['before', BEFORE], ['now', { ...PRODUCT, maxRounds: budget }]] as const;
+      for (const [which, options] of settings.filter(([w]) => w === 'now' || !process.env.BENCH_CONVERGENCE_NOW_ONLY)) {
         const tally = tallies[which];
         const t0 = performance.now();
         try {
