@@ -5,9 +5,10 @@
 import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
+import { exploreSections } from './explore';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...webSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

@@ -7,6 +7,7 @@ import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
+import { exploreRouter } from './explore/routes';
 import { modelsRouter } from './models/routes';
 import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
@@ -18,6 +19,7 @@ import type { AppDeps } from './deps';
 import { devRouter } from './dev/routes';
 import { healthRouter } from './health/routes';
 import { invitationsRouter } from './invitations/routes';
+import { lineupsRouter } from './lineups/routes';
 import { studiesRouter } from './studies/routes';
 import { teamRouter } from './team/routes';
 
@@ -62,8 +64,10 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
+  api.use('/studies', exploreRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(lineupsRouter(routeDeps));
   api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));

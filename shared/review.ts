@@ -38,6 +38,7 @@
  * or statistic that is not in this study.
  */
 import { z } from 'zod';
+import type { LineupResult } from './lineups';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
 
 export * from './reviewChart';
@@ -444,6 +445,8 @@ export interface ReportStatisticJson {
   caution: string | null;
   verdict: VerdictDto | null;
   comments: CommentDto[];
+  /** Lineup tests of this card (no answers: only how many found the observed wave). */
+  lineups: { id: number; panels: number; seed: number; createdBy: string | null; result: LineupResult }[];
 }
 
 export interface ReportJson {

@@ -20,6 +20,7 @@ import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 import { CorrelationGrid } from './CorrelationGrid';
+import { ScoreTestsSection } from './ScoreTestsSection';
 import { convergenceWord, duration, fitStateWords, fixed, progressWords, roundsWords, tauHigh, tHigh } from './format';
 import { parseId } from '../api/params';
 import { useFit, useModel, useModelMutations } from './queries';
@@ -160,7 +161,13 @@ export function FitScreen() {
           : undefined
       }
       above={<TextLink href={`/studies/${studyId}/models/${modelId}`}>← {model.data?.model.name ?? 'Model'}</TextLink>}
-      actions={active && mayRun ? <Button label="Cancel fit" variant="danger" onPress={doCancel} loading={busy === 'cancel'} testID="fit-cancel" /> : undefined}
+      actions={
+        active && mayRun ? (
+          <Button label="Cancel fit" variant="danger" onPress={doCancel} loading={busy === 'cancel'} testID="fit-cancel" />
+        ) : fit?.state === 'done' ? (
+          <Button label="Why actors choose" variant="secondary" href={`/studies/${studyId}/explore/fits/${fit.id}?model=${modelId}`} testID="fit-explore" />
+        ) : undefined
+      }
       testID="fit-page"
     >
       {error ? <LoadError message={error.message} onRetry={() => void mutate()} /> : null}
@@ -253,6 +260,7 @@ export function FitScreen() {
                   </Card>
                 </Section>
               ) : null}
+              {fit.state === 'done' ? <ScoreTestsSection studyId={studyId} modelId={modelId} fitId={fitId} mayEdit={can(study.data?.study.myRole, 'editModels')} /> : null}
             </>
           ) : null}
 

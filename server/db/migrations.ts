@@ -19,6 +19,7 @@ import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
 import { FixedPairsAndPresence1733100001300 } from '../data/migrations/0003-FixedPairsAndPresence';
 import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
+import { Lineups1733100002000 } from '../lineups/migration';
 
 export const migrations = [
   Accounts1733100000001,
@@ -29,4 +30,5 @@ export const migrations = [
   Review1733100001200,
   FixedPairsAndPresence1733100001300,
   SignoffAcknowledgement1733100001900,
+  Lineups1733100002000,
 ];
