@@ -6,9 +6,10 @@ import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { exploreSections } from './explore';
+import { gofLoadSections } from './gofLoad';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();
