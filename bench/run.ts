@@ -3,13 +3,14 @@
  * To add a section, export a BenchSection[] from a file in bench/ and append it to SECTIONS.
  */
 import { batchSections } from './batches';
+import { distributedSections } from './distributed';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { exploreSections } from './explore';
 import { gofLoadSections } from './gofLoad';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...distributedSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

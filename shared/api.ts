@@ -89,6 +89,7 @@ export type ApiErrorCode =
   | 'verdict_conflict'
   | 'already_picked'
   | 'acknowledgement_required'
+  | 'not_on_this_database'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */
