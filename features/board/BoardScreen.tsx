@@ -111,6 +111,7 @@ export function BoardScreen() {
   const { user } = useSession();
   const { breakpoint } = useBreakpoint();
   const [period, setPeriod] = useState<string>('all');
+  const [view, setView] = useState<'periods' | 'together'>('periods');
   const mutations = useBoardMutations(studyId ?? 0, batchId ?? 0);
   const [completing, setCompleting] = useState(false);
 
@@ -120,7 +121,7 @@ export function BoardScreen() {
   const isLead = !!user?.isAdmin || can(role, 'manageTeam');
   const b = batch.data?.batch;
   const waves = data.data?.waves.map((w) => w.label);
-  const together = period === 'together';
+  const together = view === 'together';
   const cards = together ? [] : (board.data?.cards ?? []).filter((c) => period === 'all' || String(c.period) === period);
   // All periods together needs every period of the study in the batch (else the API refuses with a 400).
   const allOffered = !!b && b.periods.length > 1 && b.periods.length === b.model.rates.length;
@@ -188,14 +189,21 @@ export function BoardScreen() {
           ) : null}
           {isLead ? <RequestReviewPanel studyId={studyId} batchId={batchId} /> : null}
           <Section title="Statistics" description="Each card compares the observed end wave with the simulated ones. Give each a verdict: pass, fail or unsure.">
-            {board.data.periods.length > 1 ? (
+            {allOffered ? (
+              <SegmentedControl
+                label="Show"
+                options={[
+                  { value: 'periods', label: 'Per period', description: 'the cards to review' },
+                  { value: 'together', label: 'All periods together', description: 'statistics summed over periods' },
+                ]}
+                value={view}
+                onChange={setView}
+              />
+            ) : null}
+            {board.data.periods.length > 1 && !together ? (
               <SegmentedControl
                 label="Show period"
-                options={[
-                  { value: 'all', label: 'Every period' },
-                  ...board.data.periods.map((p) => ({ value: String(p), label: `Period ${p}`, description: waves ? `${waves[p - 1]} to ${waves[p]}` : undefined })),
-                  ...(allOffered ? [{ value: 'together', label: 'All periods together', description: 'statistics summed over periods' }] : []),
-                ]}
+                options={[{ value: 'all', label: 'All' }, ...board.data.periods.map((p) => ({ value: String(p), label: `Period ${p}`, description: waves ? `${waves[p - 1]} to ${waves[p]}` : undefined }))]}
                 value={period}
                 onChange={setPeriod}
               />

@@ -127,7 +127,7 @@ describe('GOF over all periods together', () => {
     const csv = await request(t.app).get(`${base()}/${fullId}/report.csv?table=gof`).set(bearer(reviewer));
     expect(csv.status).toBe(200);
     const allRows = csv.text.split('\r\n').filter((l) => l.split(',')[2] === 'all');
-    expect(allRows).toHaveLength(all.components.length + ((report.body.allPeriods as { components: string[] }[]).find((r) => r.statistic === 'outdegree_distribution')!.components.length));
+    expect(allRows).toHaveLength(all.components.length + ((report.body.allPeriods as { statistic: string; components: string[] }[]).find((r) => r.statistic === 'outdegree_distribution')!.components.length));
     // A one-period batch of a two-period study has no all-periods part in its report.
     const part = await request(t.app).get(`${base()}/${partId}/report.json`).set(bearer(reviewer));
     expect(part.body.allPeriods).toBeNull();

@@ -16,7 +16,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { BoardResponse, CompareResponse } from '../../shared/review';
+import { formatPValue, type BoardResponse, type CompareResponse } from '../../shared/review';
+import type { GofResponse } from '../../shared/batches';
 import { DEMO_PASSWORD } from '../../server/demo/seed';
 import { stopJobQueue } from '../../server/jobs';
 import { seedDemoResults, type DemoResults } from '../../server/demo/results';
@@ -104,6 +105,21 @@ describe('a reviewer on a phone', () => {
       await card.getByRole('list', { name: 'Comments on Triad census, period 1' }).getByText('Worth trying three-cycles as well.').waitFor();
       await card.scrollIntoViewIfNeeded();
       await screenshot(page, 'board-verdict', 'phone');
+
+      // All periods together: the summed statistics' charts and tests, read-only, equal to the API's period=all.
+      const periods = page.getByRole('radiogroup', { name: 'Show', exact: true });
+      await periods.getByRole('radio', { name: /All periods together/ }).click();
+      await page.getByTestId('board-all-periods').waitFor();
+      const together = page.getByTestId('card-triad_census-all');
+      await together.getByTestId('chart-triad_census-all').locator('svg').first().waitFor();
+      const allGof = await apiGet<GofResponse>(page, `/studies/${studyId}/batches/${batchId}/gof?statistic=triad_census&period=all`);
+      expect(allGof.period).toBe('all');
+      await together.getByLabel(`p-value ${formatPValue(allGof.test.pValue)}`).waitFor();
+      expect(await page.getByTestId('card-triad_census-1').count()).toBe(0);
+      await periods.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await screenshot(page, 'board-all-periods', 'phone');
+      await periods.getByRole('radio', { name: /Per period/ }).click();
+      await page.getByTestId('card-indegree_distribution-1').waitFor();
 
       // A colleague saves the indegree card while the reviewer is choosing: the save is refused and shown.
       const indegree = page.getByTestId('card-indegree_distribution-1');
