@@ -10,6 +10,7 @@ import { modelsRouter } from './models/routes';
 import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
+import { refitsRouter } from './refits/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
 import { authRouter } from './auth/routes';
 import { dataRouter } from './data/routes';
@@ -59,6 +60,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
+  api.use('/studies', refitsRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
   api.use(notifyRouter(routeDeps));

@@ -60,7 +60,7 @@ export interface ApiErrorBody {
  * data_invalid 400 (details: DataProblemDetails, shared/data.ts), unauthenticated 401,
  * token_expired 401, token_invalid 401, invalid_credentials 401, forbidden 403, not_found 404,
  * already_member 409, last_lead 409, data_in_use 409, invitation_expired 410, invitation_used 410,
- * payload_too_large 413, rate_limited 429, internal 500.
+ * fit_not_ready 409, refit_not_ready 409, refit_not_running 409 (re-fit studies, shared/refits.ts), payload_too_large 413, rate_limited 429, internal 500.
  */
 export type ApiErrorCode =
   | 'bad_request'
@@ -83,6 +83,9 @@ export type ApiErrorCode =
   | 'batch_not_ready'
   | 'fit_not_running'
   | 'verdict_conflict'
+  | 'fit_not_ready'
+  | 'refit_not_ready'
+  | 'refit_not_running'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */

@@ -9,6 +9,7 @@ import { ActorEntity, CovariateEntity, WaveEntity } from '../data/entities';
 import { InvitationEntity } from '../invitations/entities';
 import { JobChunkEntity, JobEntity } from '../jobs/entities';
 import { FitEntity, ModelSpecEntity } from '../models/entities';
+import { RefitEntity, RefitResultEntity } from '../refits/entities';
 import { reviewEntities } from '../review/entities';
 import { StudyEntity } from '../studies/entities';
 import { MembershipEntity } from '../team/entities';
@@ -29,4 +30,6 @@ export const entities = [
   ModelSpecEntity,
   FitEntity,
   ...reviewEntities,
+  RefitEntity,
+  RefitResultEntity,
 ];
