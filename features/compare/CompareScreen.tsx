@@ -11,6 +11,7 @@ import { Checkbox } from '../ui/Checkbox';
 import { useBatches } from '../batches/queries';
 import { parseIds } from '../api/params';
 import { useCompare } from './queries';
+import { RefitLine } from '../refits/RefitLine';
 import { verdictLook } from '../board/verdictWords';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
@@ -160,6 +161,7 @@ export function CompareScreen() {
               ))}
             </View>
           </Section>
+          <RefitLine studyId={studyId} fitIds={data.columns.map((c) => c.fitId).filter((id): id is number => id != null)} />
           {data.notes.map((n) => (
             <Banner key={n} tone="info">
               {n}
