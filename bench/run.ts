@@ -5,8 +5,9 @@
 import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
+import { refitSections } from './refits';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...refitSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

@@ -79,6 +79,8 @@ export interface RefitModelInfo {
   /** Whether each parameter is estimated in a re-fit. */
   estimated: boolean[];
   converged: boolean;
+  /** The fit's values were entered by hand (nothing was estimated). */
+  handEntered: boolean;
 }
 
 export interface RefitSummary {

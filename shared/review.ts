@@ -37,6 +37,7 @@
  * or statistic that is not in this study.
  */
 import { z } from 'zod';
+import type { RefitResults } from './refits';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
 
 export * from './reviewChart';
@@ -360,6 +361,8 @@ export interface ReportJson {
   statistics: ReportStatisticJson[];
   counts: VerdictCounts;
   comparison: CompareResponse | null;
+  /** A re-fit study the lead chose to include (shared/refits.ts), or null. */
+  refitStudy: RefitResults | null;
   signoffs: SignoffDto[];
   changedSinceSignoff: boolean;
   software: { wavefit: string; node: string; packages: Record<string, string> };

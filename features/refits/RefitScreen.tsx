@@ -186,7 +186,7 @@ export function RefitScreen() {
             <View key={m.fitId} style={{ flexDirection: 'row', alignItems: 'flex-start', gap: space.half }}>
               <View style={{ width: 10, height: 10, marginTop: 5, borderRadius: 5, backgroundColor: GROUP_COLOURS[k % GROUP_COLOURS.length] }} />
               <Text variant="caption" style={{ flexShrink: 1 }}>
-                {`${m.name}${m.converged ? '' : ' (the fit itself did not converge or was entered by hand)'}: `}
+                {`${m.name}${m.handEntered ? ' (values entered by hand)' : m.converged ? '' : ' (the fit itself did not converge: its estimates may be off)'}: `}
                 {m.labels.map((l, i) => `${l} ${m.values[i].toFixed(3)}`).join(' · ')}
               </Text>
             </View>

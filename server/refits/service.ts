@@ -70,6 +70,7 @@ function storedModel(fit: FitForRefit): StoredRefitModel {
     values: values as number[],
     estimated,
     converged: fit.mode === 'estimate' && results.converged,
+    handEntered: fit.mode !== 'estimate',
   };
   return { info, spec, derivative };
 }

@@ -9,7 +9,8 @@
  *
  * Monte Carlo errors (Morris, White & Crowther 2019, Using simulation studies to evaluate statistical
  * methods, Statistics in Medicine 38, table 6; from memory): bias SD / sqrt(R); SD of estimates
- * SD / sqrt(2 (R - 1)) (normal estimates); mean SE sd(SE) / sqrt(R); coverage sqrt(c (1 - c) / R);
+ * SD / sqrt(2 (R - 1)) (normal estimates); mean SE sd(SE) / sqrt(R); coverage sqrt(c (1 - c) / R)
+ * (at c = 0 or 1, sqrt(0.95 * 0.05 / R), the error at the nominal level);
  * the ratio by the delta method, treating the SD and the mean SE as independent.
  * The generating value of an effect the source model does not have is 0.
  */
@@ -82,7 +83,8 @@ export function parameterSummary(key: string, label: string, truth: number, esti
     sd: { value: fin(sd), mcError: fin(sd / Math.sqrt(2 * (R - 1))) },
     meanSe: { value: fin(meanSe), mcError: fin(sdSe / Math.sqrt(seVals.length)) },
     ratio: { value: fin(ratio), mcError: fin(ratioMc) },
-    coverage: { value: fin(coverage), mcError: fin(Math.sqrt((coverage * (1 - coverage)) / withSe.length)) },
+    // At 0% or 100% the binomial formula gives 0; the error the nominal 95% would have is shown instead.
+    coverage: { value: fin(coverage), mcError: fin(Math.sqrt((coverage > 0 && coverage < 1 ? coverage * (1 - coverage) : 0.95 * 0.05) / withSe.length)) },
     estimates,
   };
 }

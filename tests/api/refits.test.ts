@@ -151,6 +151,37 @@ describe('re-fit studies API', () => {
     expect(bad.status).toBe(400);
   });
 
+  it('the fit report includes a re-fit study when asked (JSON and PDF); a foreign or malformed id is refused', async () => {
+    const list = (await request(t.app).get(base()).set(bearer(lead))).body.refits as RefitSummary[];
+    const done = list.find((r) => r.state === 'done')!;
+    const batch = await request(t.app).post(`/api/studies/${studyId}/batches`).set(bearer(stats)).send({ fitId: fitA, chains: 20, seed: 3, statistics: ['outdegree_distribution'] });
+    expect(batch.status).toBe(201);
+    const batchId = batch.body.batch.id as number;
+    for (let i = 0; i < 300; i++) {
+      const b = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}`).set(bearer(lead));
+      if (b.body.batch.state === 'done') break;
+      await sleep(100);
+    }
+    const plain = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}/report.json`).set(bearer(lead));
+    expect(plain.status).toBe(200);
+    expect(plain.body.refitStudy).toBeNull();
+    const withRefit = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}/report.json?refit=${done.id}`).set(bearer(lead));
+    expect(withRefit.status).toBe(200);
+    expect(withRefit.body.refitStudy.refit.id).toBe(done.id);
+    expect(withRefit.body.refitStudy.include).toBe('converged');
+    expect(withRefit.body.refitStudy.groups.length).toBeGreaterThan(0);
+    const pdfPlain = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}/report.pdf`).set(bearer(lead)).buffer(true);
+    const pdf = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}/report.pdf?refit=${done.id}`).set(bearer(lead)).buffer(true);
+    expect(pdf.status).toBe(200);
+    expect(pdf.headers['content-type']).toMatch(/application\/pdf/);
+    expect(Number(pdf.headers['content-length'] ?? pdf.body.length)).toBeGreaterThan(Number(pdfPlain.headers['content-length'] ?? pdfPlain.body.length));
+    for (const bad of ['abc', '999999']) {
+      const res = await request(t.app).get(`/api/studies/${studyId}/batches/${batchId}/report.json?refit=${bad}`).set(bearer(lead));
+      expect(res.status).toBe(400);
+      expect(res.body.error.message).toMatch(/re-fit study/i);
+    }
+  });
+
   it('cancels a running study; a reviewer may not; the re-fits done so far carry a caution', async () => {
     const created = await request(t.app).post(base()).set(bearer(stats)).send({ fitIds: [fitA], replications: 400, seed: 8, phase3Runs: 50 });
     const id = created.body.refit.id as number;

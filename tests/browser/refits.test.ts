@@ -73,7 +73,16 @@ describe('re-fit studies in the browser', () => {
       await page.getByTestId('pair-r').waitFor();
       await expect(page.getByTestId('pair-r').textContent()).resolves.toMatch(/^r = -?\d\.\d\d over \d+ re-fits/);
       await page.getByTestId('refit-cautions').getByText(/of 20 re-fits converged/).first().waitFor();
-      await page.screenshot({ path: join(SCREENSHOTS, 'refit-results-wide-1440.png'), fullPage: true });
+      // The page scrolls inside the app's own view, so take each part by itself.
+      await page.getByTestId('refit-panels').screenshot({ path: join(SCREENSHOTS, 'refit-panels-wide-1440.png') });
+      await page.getByTestId('refit-pair').screenshot({ path: join(SCREENSHOTS, 'refit-pair-wide-1440.png') });
+      await page.getByTestId('refit-correlations').screenshot({ path: join(SCREENSHOTS, 'refit-correlations-wide-1440.png') });
+      await page.getByTestId('refit-table-0-0').screenshot({ path: join(SCREENSHOTS, 'refit-table-wide-1440.png') });
+      // Side by side on a wide screen: the first two panels share a row.
+      const p1 = await page.getByTestId('panel-rate:1').boundingBox();
+      const p2 = await page.getByTestId('panel-rate:2').boundingBox();
+      expect(Math.abs(p1!.y - p2!.y)).toBeLessThan(2);
+      expect(p2!.x).toBeGreaterThan(p1!.x + p1!.width - 1);
     } finally {
       await b.close();
     }
@@ -97,7 +106,8 @@ describe('re-fit studies in the browser', () => {
       expect(second!.y).toBeGreaterThan(first!.y + first!.height - 1);
       await page.getByTestId('refit-table-0-0').scrollIntoViewIfNeeded();
       await screenshot(page, 'refit-table', 'phone');
-      await page.screenshot({ path: join(SCREENSHOTS, 'refit-results-phone-390.png'), fullPage: true });
+      await page.getByTestId('refit-pair').scrollIntoViewIfNeeded();
+      await screenshot(page, 'refit-pair', 'phone');
     } finally {
       await b.close();
     }

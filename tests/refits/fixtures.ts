@@ -27,6 +27,7 @@ export function storedModel(m: KnownModel, fitId: number): StoredRefitModel {
       values: [...m.rates, ...m.effects.map((e) => e.value)],
       estimated: keys.map(() => true),
       converged: true,
+      handEntered: true,
     },
     spec: {
       rates: m.rates.map((value, k) => ({ period: k + 1, estimate: true, value })),
