@@ -9,12 +9,12 @@ import { SessionProvider } from '../features/auth/session';
 import { colors } from '../features/ui/theme';
 
 export default function RootLayout() {
-  // The shipped font files (fonts/, OFL); nothing is fetched from a font host.
+  // The shipped font files (fonts/, OFL); nothing is fetched from a font host. Only the text faces
+  // here: the signed-out pages (sign-in, invitation) show no figures, so the mono faces for numbers
+  // are loaded by the signed-in gate (features/shell/SignedInGate.tsx), keeping the first page light.
   const [loaded, error] = useFonts({
     'Atkinson-Regular': require('../fonts/AtkinsonHyperlegible_400Regular.ttf'),
     'Atkinson-Bold': require('../fonts/AtkinsonHyperlegible_700Bold.ttf'),
-    'PlexMono-Regular': require('../fonts/IBMPlexMono_400Regular.ttf'),
-    'PlexMono-Medium': require('../fonts/IBMPlexMono_500Medium.ttf'),
   });
   // The navigator is mounted from the first render (the router resolves nested routes only
   // through mounted navigators); until the faces are ready the page stays invisible.

@@ -2,6 +2,7 @@
  * Builds the Express app of the Wavefit API. No listening and no module-level state, so tests can
  * make many apps (each on its own database) in one process. main.ts adds the web app and listens.
  */
+import compression from 'compression';
 import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
@@ -36,6 +37,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
+  // gzip or brotli for every compressible answer above 1 kB (the API's JSON and the web app served after it).
+  app.use(compression());
 
   const smallJson = express.json({ limit: config.jsonLimit });
   const uploadJson = express.json({ limit: config.uploadJsonLimit });

@@ -18,10 +18,29 @@ import { UserEntity } from './auth/entities';
 import { describeSeed, seedDemo } from './demo/seed';
 import { createMailer } from './mail/mailer';
 
-/** Adds the exported web app: static files, and index.html for any other page path outside /api (SPA fallback). */
+/** A file name carrying a content hash: the bundler's chunks (entry-<32 hex>.js) and assets (name.<32 hex>.ttf). */
+const HASHED_FILE = /[.-][0-9a-f]{32}\.[A-Za-z0-9]{1,8}$/;
+
+/** Cache-Control of a file of the web app: a hashed file never changes, so it is kept for a year; anything else is revalidated. */
+export function webCacheControl(path: string): string {
+  return HASHED_FILE.test(path) ? 'public, max-age=31536000, immutable' : 'no-cache';
+}
+
+/**
+ * Adds the exported web app: static files, and index.html for any other page path outside /api (SPA
+ * fallback). Hashed files (dist/_expo/static/..., the hashed assets) are immutable for a year;
+ * index.html and unhashed files are revalidated on every load. Compression is the app's
+ * (createApp mounts the `compression` middleware first).
+ */
 export function serveWebApp(app: Express, distDir: string): void {
   const indexFile = join(distDir, 'index.html');
-  app.use(express.static(distDir, { index: false, maxAge: '1h' }));
+  app.use(
+    express.static(distDir, {
+      index: false,
+      cacheControl: false,
+      setHeaders: (res, path) => res.setHeader('Cache-Control', webCacheControl(path)),
+    }),
+  );
   app.use((req, res, next) => {
     if ((req.method !== 'GET' && req.method !== 'HEAD') || req.path === '/api' || req.path.startsWith('/api/')) {
       next();

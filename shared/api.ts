@@ -20,7 +20,7 @@
  *   PATCH  /studies/:studyId/members/:userId   ChangeRoleBody       -> { member: Member }        (lead; never leaves a study without a lead)
  *   DELETE /studies/:studyId/members/:userId                        -> 204 (lead; never removes the last lead)
  *   GET    /dev/outbox                                              -> { messages: OutboxMessage[] } (not in production)
- *   GET    /health                                                  -> { ok: true, version }
+ *   GET    /health                                                  -> HealthResponse { ok: true, version, devOutbox }
  * Study data (contract in shared/data.ts):
  *   POST   /studies/:studyId/data              DataUploadBody       -> DataUploadResponse (lead, statistician; replaces the data)
  *   GET    /studies/:studyId/data                                   -> StudyDataResponse  (members)
@@ -83,6 +83,7 @@ export type ApiErrorCode =
   | 'batch_not_ready'
   | 'fit_not_running'
   | 'verdict_conflict'
+  | 'acknowledgement_required'
   | 'fit_not_ready'
   | 'refit_not_ready'
   | 'refit_not_running'
@@ -117,6 +118,13 @@ export const acceptInvitationBodySchema = z.object({
   password: passwordSchema,
 });
 export type AcceptInvitationBody = z.infer<typeof acceptInvitationBodySchema>;
+
+/** GET /api/health. `devOutbox`: the server mounts the development outbox (clients treat a missing field as false). */
+export interface HealthResponse {
+  ok: boolean;
+  version: string;
+  devOutbox?: boolean;
+}
 
 export interface UserInfo {
   id: number;

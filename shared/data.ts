@@ -4,7 +4,16 @@
  * Endpoints (under /api, see shared/api.ts for auth and errors):
  *   POST /studies/:studyId/data                DataUploadBody -> DataUploadResponse (lead, statistician; replaces the study's data)
  *   GET  /studies/:studyId/data                               -> StudyDataResponse  (members)
+ *   POST /studies/:studyId/data/preview        DataUploadBody -> DataPreviewResponse (lead, statistician; stores nothing)
  *   GET  /studies/:studyId/data/waves/:index                  -> WaveTiesResponse   (members; index counts from 1)
+ *   GET  /studies/:studyId/data/layout                        -> DataLayoutResponse (members; one seeded layout for every wave)
+ *   GET  /studies/:studyId/data/waves/:index.csv              -> text/csv, the wave in the format it was uploaded in
+ *   GET  /studies/:studyId/data/actors.csv                    -> text/csv, the actors file (labels, covariates, presence)
+ *   GET  /studies/:studyId/data/fixed-pairs.csv               -> text/csv, the fixed pairs (404 when there are none)
+ *
+ * Replacing data that models, fits or batches were built on needs `confirmReplace: true` in the
+ * body; without it the answer is 409 data_in_use with DataReplaceInfo in the details. While a fit or
+ * batch is queued or running, replacing is refused even with confirmation.
  *
  * File conventions (the client reads each file as text and sends it in the JSON body):
  * - Any file: UTF-8 text, at most MAX_FILE_BYTES (2 MB); a leading byte-order mark is ignored;
@@ -28,6 +37,14 @@
  *   since the value at wave m acts in the period from wave m to m+1). With an actors file, its
  *   labels are the actor set and its order the actor order; without one, the actors are the labels
  *   met in the wave files, in order of first appearance.
+ * - Changing composition: columns `present@1` .. `present@M` of the actors file (all M, values 1 or
+ *   0) say in which waves an actor belongs to the group. An absent actor may have no ties in that
+ *   wave; in a period an actor acts only when present at both of its waves.
+ * - Fixed pairs ('fixedPairs', optional): one pair a line, `sender,receiver,value[,waves]`: value 0
+ *   (never a tie: a structural zero) or 1 (always a tie); waves as "2-3", "1 3" or "1;3", empty for
+ *   every wave. The waves must agree with the value (a missing observation takes it). A pair fixed
+ *   at both waves of a period with the same value never changes in that period, in fits and batches.
+ *   A header line sender,receiver,... is skipped as for edge lists.
  *
  * Problems are reported with the file, line and column (both counted from 1) and collected, up to
  * MAX_PROBLEMS, in the 400 error's details (DataProblemDetails, code data_invalid). Nothing stored
@@ -62,12 +79,30 @@ export const dataUploadBodySchema = z.object({
     )
     .max(MAX_WAVES, `At most ${MAX_WAVES} waves can be uploaded.`),
   actors: z.object({ content: fileText, fileName }).optional(),
+  /** Pairs that cannot change (structural zeros and ones), see the file conventions above. */
+  fixedPairs: z.object({ content: fileText, fileName }).optional(),
   missingMarker: z.string().trim().min(1, 'The missing marker cannot be empty.').max(20).default('NA'),
+  /** Replace data that stored models, fits or batches were built on (they become stale). */
+  confirmReplace: z.boolean().optional(),
 });
 export type DataUploadBody = z.input<typeof dataUploadBodySchema>;
 export type ParsedDataUploadBody = z.output<typeof dataUploadBodySchema>;
 
 // ---------- problems ----------
+/** How problems name a wave file: 'wave "spring" (spring.csv)', or 'wave 2' without a label. */
+export function waveFileTitle(label: string, position: number, fileName?: string): string {
+  const base = label ? `wave "${label}"` : `wave ${position + 1}`;
+  return fileName && fileName !== label ? `${base} (${fileName})` : base;
+}
+/** How problems name the fixed-pairs file. */
+export function fixedPairsFileTitle(fileName?: string): string {
+  return fileName ? `fixed-pairs file (${fileName})` : 'fixed-pairs file';
+}
+/** How problems name the actors file. */
+export function actorsFileTitle(fileName?: string): string {
+  return fileName ? `actors file (${fileName})` : 'actors file';
+}
+
 export interface DataProblem {
   /** The file's name, e.g. 'wave "spring" (spring.csv)' or 'actors file'; '' for the upload as a whole. */
   file: string;
@@ -128,6 +163,8 @@ export interface WaveSummary {
   reciprocity: number | null;
   /** Ordered pairs (off the diagonal) not observed. */
   missing: number;
+  /** Actors not present at this wave (only when the actors file has present@ columns). */
+  absent?: number;
 }
 
 export interface WaveChange {
@@ -153,6 +190,21 @@ export interface StudyDataResponse {
   covariates: CovariateInfo[];
   waves: WaveSummary[];
   changes: WaveChange[];
+  /** Pairs whose tie cannot change, from the fixed-pairs file (absent when there is none). */
+  fixed?: FixedPairInfo[];
+  /** Number of fixed pairs (sender, receiver), when there are any. */
+  fixedPairs?: number;
+  /** Per actor (actor order) and wave: present in the group; absent when the actors file has no present@ columns. */
+  presence?: boolean[][];
+}
+
+export interface FixedPairInfo {
+  sender: string;
+  receiver: string;
+  /** 0: never a tie; 1: always a tie. */
+  value: 0 | 1;
+  /** Waves (from 1) in which it is fixed. */
+  waves: number[];
 }
 
 export interface DataUploadResponse extends StudyDataResponse {
@@ -169,4 +221,42 @@ export interface WaveTiesResponse {
   ties: Array<[number, number]>;
   /** Pairs not observed, as [sender, receiver] positions. */
   missing: Array<[number, number]>;
+}
+
+// ---------- preview and replacing ----------
+
+/** What replacing the stored data would touch. */
+export interface DataReplaceInfo {
+  /** The study has stored data that an upload would replace. */
+  hasData: boolean;
+  models: number;
+  fits: number;
+  batches: number;
+  /** Fits and batches queued or running: replacing is refused until they end. */
+  running: number;
+  /** True when storing needs confirmReplace (models, fits or batches exist). */
+  needsConfirmation: boolean;
+  /** A plain sentence of what becomes stale, or null when nothing does. */
+  stale: string | null;
+}
+
+/** The answer of POST .../data/preview: the same parser as the upload, nothing stored. */
+export type DataPreviewResponse =
+  | {
+      ok: true;
+      preview: Omit<StudyDataResponse, 'uploadedAt' | 'hasData'>;
+      replace: DataReplaceInfo;
+    }
+  | {
+      ok: false;
+      message: string;
+      problems: DataProblem[];
+      truncated: boolean;
+      replace: DataReplaceInfo;
+    };
+
+export interface DataLayoutResponse {
+  actors: string[];
+  /** One position in [0, 1] x [0, 1] per actor, from the union of every wave's ties (seeded, so stable). */
+  positions: Array<[number, number]>;
 }

@@ -32,7 +32,8 @@
  *   GET  /studies/:studyId/batches/:batchId/report.csv?table=gof|estimates -> text/csv        (members)
  *   GET  /studies/:studyId/batches/:batchId/report.json?compare=2,3        -> ReportJson      (members)
  *
- * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), batch_not_ready 409
+ * Error codes added here: verdict_conflict 409 (details: VerdictConflictDetails), acknowledgement_required
+ * 400 (a sign-off of a report with concerns without a reason; details: { concerns }), batch_not_ready 409
  * (the batch has not finished), validation_failed 400 for bodies, not_found 404 for a batch, request
  * or statistic that is not in this study.
  */
@@ -120,8 +121,28 @@ export const notificationPreferencesBodySchema = z
 
 export type NotificationPreferencesBody = z.input<typeof notificationPreferencesBodySchema>;
 
+/** The shortest reason accepted when a lead signs off despite a concern (a few words, not "ok"). */
+export const MIN_ACK_REASON = 10;
+
 export const signoffBodySchema = z.object({
   note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  /**
+   * Needed when the report has concerns (ReportStatus.concerns: the fit did not converge, or the
+   * batch ran fewer chains than FEW_CHAINS): the lead's reason for signing off anyway. It goes into
+   * the report. Ignored when there is no concern.
+   */
+  acknowledgement: z
+    .object(
+      {
+        reason: z
+          .string({ error: 'The reason must be text.' })
+          .trim()
+          .min(MIN_ACK_REASON, `Give a reason of at least ${MIN_ACK_REASON} characters for signing off despite the concerns.`)
+          .max(MAX_NOTE, `A reason may have at most ${MAX_NOTE} characters.`),
+      },
+      { error: 'The acknowledgement is an object with a reason.' },
+    )
+    .optional(),
 });
 
 export type SignoffBody = z.input<typeof signoffBodySchema>;
@@ -198,6 +219,18 @@ export interface ReviewRequestDto {
   completedAt: string | null;
 }
 
+/** A concern that a sign-off must acknowledge: a code and the plain sentence shown and printed. */
+export interface SignoffConcern {
+  code: 'not_converged' | 'few_chains';
+  message: string;
+}
+
+export interface SignoffAcknowledgement {
+  /** The concerns the lead acknowledged, as they were worded at signing. */
+  concerns: SignoffConcern[];
+  reason: string;
+}
+
 export interface SignoffDto {
   id: number;
   batchId: number;
@@ -206,6 +239,8 @@ export interface SignoffDto {
   note: string;
   /** Verdict counts when it was signed. */
   counts: VerdictCounts;
+  /** Set when the lead signed off despite concerns (non-converged fit, few chains), with the reason given. */
+  acknowledgement: SignoffAcknowledgement | null;
 }
 
 export interface BoardResponse {
@@ -274,10 +309,17 @@ export interface CompareColumn {
   tauMax: number | null;
 }
 
+/** Significance of an estimate by its t-statistic (estimate / SE) against the normal quantiles: "p1" |t| >= 2.576, "p5" |t| >= 1.960, "none" below. */
+export type Significance = 'p1' | 'p5' | 'none';
+
 export interface CompareEstimateCell {
   value: number;
   se: number | null;
+  /** The convergence t-ratio of the fit (how well the fit converged; not a test of the parameter). */
   convergenceT: number | null;
+  /** t-statistic estimate / SE (null without an SE, and for rate parameters, which are not tested against 0). */
+  t: number | null;
+  significance: Significance | null;
 }
 
 export interface CompareEstimateRow {
@@ -285,12 +327,14 @@ export interface CompareEstimateRow {
   label: string;
   kind: 'rate' | 'objective';
   cells: (CompareEstimateCell | null)[];
-  /** Column whose convergence t-ratio is smallest in absolute value (null when fewer than two have one, or a tie). */
-  better: number | null;
 }
 
 export interface ComparePCell {
   pValue: number;
+  /** Monte Carlo standard error of the p-value, sqrt(p(1 - p) / N) for N chains. */
+  mcSe: number;
+  /** The Mahalanobis distance of the observed statistic. */
+  distance: number;
   verdict: Verdict | null;
 }
 
@@ -299,8 +343,17 @@ export interface ComparePRow {
   label: string;
   period: number;
   cells: (ComparePCell | null)[];
-  /** Column with the highest p-value (null when fewer than two have one, or a tie). */
+  /** Column whose p-value exceeds every other by more than the rule's margin (null otherwise). */
   better: number | null;
+  /** "beyond": one column's p-value is higher beyond Monte Carlo error; "within": the differences are within it; null: fewer than two p-values. */
+  difference: 'beyond' | 'within' | null;
+}
+
+/** Per column: statistics failing at 0.05, how many were tested, and the summed Mahalanobis distance. */
+export interface CompareOverall {
+  failing: number;
+  tested: number;
+  distanceSum: number | null;
 }
 
 export interface CompareResponse {
@@ -310,7 +363,55 @@ export interface CompareResponse {
   pValues: ComparePRow[];
   /** Verdict counts per column (null for a fit without a batch). */
   verdicts: (VerdictCounts | null)[];
+  /** Per column (null for a fit without a batch). */
+  overall: (CompareOverall | null)[];
+  /** The rule for marking a p-value "better", in words. */
+  betterRule: string;
   notes: string[];
+}
+
+/** Two-sided normal quantiles for 5% and 1% (Phi^-1(0.975), Phi^-1(0.995)). */
+export const Z_5 = 1.959964;
+export const Z_1 = 2.575829;
+/** A p-value is marked better only when it exceeds each other by more than this many combined Monte Carlo SEs. */
+export const BETTER_MC_SE_FACTOR = 2;
+export const FAIL_LEVEL = 0.05;
+
+export const SIGNIFICANCE_WORDS: Record<Significance, string> = {
+  p1: 'significant at 1%',
+  p5: 'significant at 5%',
+  none: 'not significant at 5%',
+};
+
+export function significanceOf(t: number | null): Significance | null {
+  if (t === null || !Number.isFinite(t)) return null;
+  const a = Math.abs(t);
+  return a >= Z_1 ? 'p1' : a >= Z_5 ? 'p5' : 'none';
+}
+
+/**
+ * Monte Carlo standard error of a p-value estimated from N chains: sqrt(p(1 - p) / N), with p kept
+ * within [1/(N + 1), N/(N + 1)] so that a p-value at the edge (0 or 1 of N) does not claim to have no
+ * error at all.
+ */
+export function monteCarloSe(p: number, chains: number): number {
+  if (!(chains > 0) || !Number.isFinite(p)) return NaN;
+  const edge = 1 / (chains + 1);
+  const q = Math.min(1 - edge, Math.max(edge, p));
+  return Math.sqrt((q * (1 - q)) / chains);
+}
+
+/**
+ * The column whose p-value is higher than every other present one by more than
+ * BETTER_MC_SE_FACTOR x sqrt(se_i^2 + se_j^2), and whether the row's differences are beyond or within
+ * Monte Carlo error.
+ */
+export function betterPValue(cells: ReadonlyArray<{ pValue: number; mcSe: number } | null>): { better: number | null; difference: 'beyond' | 'within' | null } {
+  const present = cells.map((c, i) => [c, i] as const).filter((e): e is readonly [{ pValue: number; mcSe: number }, number] => e[0] !== null && Number.isFinite(e[0].pValue));
+  if (present.length < 2) return { better: null, difference: null };
+  const top = present.reduce((a, b) => (b[0].pValue > a[0].pValue ? b : a));
+  const clear = present.every(([c, i]) => i === top[1] || top[0].pValue - c.pValue > BETTER_MC_SE_FACTOR * Math.sqrt(top[0].mcSe ** 2 + c.mcSe ** 2));
+  return clear ? { better: top[1], difference: 'beyond' } : { better: null, difference: 'within' };
 }
 
 // ---------- report ----------
@@ -323,6 +424,8 @@ export interface ReportStatus {
   /** True when a verdict or comment changed after the newest sign-off. */
   changedSinceSignoff: boolean;
   canSign: boolean;
+  /** What a sign-off must acknowledge with a reason (empty: it signs off as is). */
+  concerns: SignoffConcern[];
 }
 
 export interface ReportStatisticJson {
@@ -368,6 +471,23 @@ export interface ReportJson {
   software: { wavefit: string; node: string; packages: Record<string, string> };
 }
 
+/**
+ * The concerns a sign-off must acknowledge: a fit that did not converge (its convergence check
+ * failed; hand-entered values have none), and a batch with fewer chains than FEW_CHAINS (the
+ * p-values' Monte Carlo resolution is coarse).
+ */
+export function signoffConcerns(input: { converged: boolean | null; maxAbsT: number | null; tauMax: number | null; chains: number; fewChains: number }): SignoffConcern[] {
+  const out: SignoffConcern[] = [];
+  if (input.converged === false) {
+    const figures = [input.maxAbsT !== null ? `largest |t| ${input.maxAbsT.toFixed(3)}` : null, input.tauMax !== null ? `overall ratio ${input.tauMax.toFixed(3)}` : null].filter(Boolean).join(', ');
+    out.push({ code: 'not_converged', message: `The fit did not converge${figures ? ` (${figures})` : ''}; its estimates may not be the method-of-moments solution.` });
+  }
+  if (input.chains < input.fewChains) {
+    out.push({ code: 'few_chains', message: `The batch ran ${input.chains} chains, fewer than ${input.fewChains}; its p-values are coarse (the smallest possible is 1/${input.chains + 1}).` });
+  }
+  return out;
+}
+
 /** Counts of verdicts over a list of cards. */
 export function countVerdicts(verdicts: ReadonlyArray<Verdict | null>): VerdictCounts {
   const counts: VerdictCounts = { pass: 0, fail: 0, unsure: 0, awaiting: 0, total: verdicts.length };
@@ -376,22 +496,6 @@ export function countVerdicts(verdicts: ReadonlyArray<Verdict | null>): VerdictC
     else counts[v]++;
   }
   return counts;
-}
-
-/** Index of the largest (or smallest) value, or null when fewer than two are given or the best is shared. */
-export function bestIndex(values: ReadonlyArray<number | null>, prefer: 'higher' | 'lower'): number | null {
-  const present = values.map((v, i) => [v, i] as const).filter((e): e is readonly [number, number] => e[0] !== null && Number.isFinite(e[0]));
-  if (present.length < 2) return null;
-  const sign = prefer === 'higher' ? 1 : -1;
-  let best = present[0];
-  let shared = false;
-  for (const e of present.slice(1)) {
-    if (sign * e[0] > sign * best[0]) {
-      best = e;
-      shared = false;
-    } else if (e[0] === best[0]) shared = true;
-  }
-  return shared ? null : best[1];
 }
 
 /** Parses "1,2,3" (a query parameter) into distinct positive ids; throws with a plain message. */

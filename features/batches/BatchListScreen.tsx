@@ -2,6 +2,7 @@ import { useLocalSearchParams } from 'expo-router';
 import { View } from 'react-native';
 import { can } from '../../shared/api';
 import type { BatchSummary } from '../../shared/batches';
+import { StaleBadge } from '../data/StaleDataBanner';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
 import { Badge } from '../ui/Badge';
@@ -27,7 +28,10 @@ function BatchRow({ studyId, batch }: { studyId: number; batch: BatchSummary }) 
         <TextLink href={`/studies/${studyId}/batches/${batch.id}`} accessibilityLabel={`Open ${batch.label}`}>
           {batch.label}
         </TextLink>
-        <Badge label={state.label} tone={state.tone} icon={state.icon} />
+        <View style={{ flexDirection: 'row', gap: space.half }}>
+          <StaleBadge studyId={studyId} createdAt={batch.createdAt} />
+          <Badge label={state.label} tone={state.tone} icon={state.icon} />
+        </View>
       </View>
       <Text variant="caption">
         {plural(batch.chains, 'chain')} · period{batch.periods.length > 1 ? 's' : ''} {batch.periods.join(', ')} ·{' '}

@@ -3,6 +3,7 @@ import { useState } from 'react';
 import { Linking, View } from 'react-native';
 import { can } from '../../shared/api';
 import type { BatchDetail, GofSummaryRow } from '../../shared/batches';
+import { StaleDataBanner } from '../data/StaleDataBanner';
 import { getApiBase, messageOf } from '../api/client';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
@@ -215,6 +216,7 @@ export function BatchScreen() {
       {error ? <LoadError message={error.message} onRetry={() => void mutate()} /> : null}
       {isLoading && !batch ? <Loading label="Loading the batch…" /> : null}
       {cancelError ? <Banner tone="error">{cancelError}</Banner> : null}
+      {batch && studyId !== null ? <StaleDataBanner studyId={studyId} createdAt={batch.createdAt} what="batch" /> : null}
       {batch && state ? (
         <>
           <Card>

@@ -1,12 +1,19 @@
 /**
- * Two to four candidate models side by side: each parameter's estimate with its standard error and
- * convergence t-ratio, each statistic's p-value with the team's verdict, and the verdict counts. The
- * better value per row carries an icon and the word "better" (lower |t| for estimates, higher p for
- * statistics). A table on a wide screen; on a phone the same rows stack as cards.
+ * Two to four candidate models side by side, marked only where a methodologist would:
+ * - per model a convergence line (pass / fail, with the largest |t| and the overall ratio) and an
+ *   overall line (statistics failing at 0.05; the summed Mahalanobis distance), with the caution that
+ *   p-values of different statistics are not independent;
+ * - per parameter the estimate, its standard error and t = estimate / SE with a significance word
+ *   (no model is marked better on an estimate);
+ * - per statistic the p-value with its Monte Carlo standard error, and "better" only where one
+ *   p-value is higher than the others by more than twice their combined Monte Carlo error (the rule
+ *   is printed on the screen; rows within the error say so).
+ * A table on a wide screen; on a phone the same rows stack as cards.
  */
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { View } from 'react-native';
-import { formatPValue, MAX_COMPARE, VERDICT_WORDS, type CompareColumn, type CompareEstimateRow, type ComparePRow } from '../../shared/review';
+import { CONVERGENCE_T_LIMIT, TAU_MAX_LIMIT } from '../../shared/models';
+import { FAIL_LEVEL, formatPValue, MAX_COMPARE, SIGNIFICANCE_WORDS, VERDICT_WORDS, type CompareColumn, type CompareEstimateRow, type ComparePRow } from '../../shared/review';
 import { Checkbox } from '../ui/Checkbox';
 import { useBatches } from '../batches/queries';
 import { parseIds } from '../api/params';
@@ -68,11 +75,18 @@ export function CompareScreen() {
       render: (r: CompareEstimateRow) => {
         const cell = r.cells[i];
         if (!cell) return <Text variant="figure">—</Text>;
+        const test =
+          cell.t !== null && cell.significance !== null
+            ? `t = ${num(cell.t, 2)} · ${SIGNIFICANCE_WORDS[cell.significance]}`
+            : r.kind === 'rate'
+              ? 'rate: not tested'
+              : 'no standard error: not tested';
         return (
-          <View style={{ alignItems: 'flex-end', gap: 2 }} accessibilityLabel={`${num(cell.value)}${cell.se !== null ? `, standard error ${num(cell.se)}` : ''}${cell.convergenceT !== null ? `, t ${num(cell.convergenceT, 2)}` : ''}${r.better === i ? ', better' : ''}`}>
-            <Text variant="figure" style={r.better === i ? { fontWeight: '700' } : undefined}>{`${num(cell.value)}${cell.se !== null ? ` (${num(cell.se)})` : ''}`}</Text>
-            {cell.convergenceT !== null ? <Text variant="caption">{`t = ${num(cell.convergenceT, 2)}`}</Text> : null}
-            {r.better === i ? <Better /> : null}
+          <View style={{ alignItems: 'flex-end', gap: 2 }} accessibilityLabel={`${num(cell.value)}${cell.se !== null ? `, standard error ${num(cell.se)}` : ''}, ${test}`} testID={`estimate-${r.key}-${i}`}>
+            <Text variant="figure">{`${num(cell.value)}${cell.se !== null ? ` (${num(cell.se)})` : ''}`}</Text>
+            <Text variant="caption" style={cell.significance === 'p1' || cell.significance === 'p5' ? { color: colors.ink } : undefined}>
+              {test}
+            </Text>
           </View>
         );
       },
@@ -80,7 +94,17 @@ export function CompareScreen() {
   ];
 
   const pColumns: Column<ComparePRow>[] = [
-    { key: 'label', title: 'Statistic', flex: 1.6, render: (r) => <Text variant="bodyStrong">{`${r.label}, period ${r.period}`}</Text> },
+    {
+      key: 'label',
+      title: 'Statistic',
+      flex: 1.6,
+      render: (r) => (
+        <View style={{ gap: 2 }}>
+          <Text variant="bodyStrong">{`${r.label}, period ${r.period}`}</Text>
+          {r.difference === 'within' ? <Text variant="caption">Differences within Monte Carlo error: no model marked</Text> : null}
+        </View>
+      ),
+    },
     ...(data?.columns ?? []).map((c, i) => ({
       key: c.key,
       title: columnTitle(c),
@@ -91,8 +115,12 @@ export function CompareScreen() {
         if (!cell) return <Text variant="figure">—</Text>;
         const look = cell.verdict ? verdictLook[cell.verdict] : null;
         return (
-          <View style={{ alignItems: 'flex-end', gap: 2 }} accessibilityLabel={`p ${formatPValue(cell.pValue)}, verdict ${cell.verdict ? VERDICT_WORDS[cell.verdict] : 'awaiting review'}${r.better === i ? ', better' : ''}`}>
-            <Text variant="figure" style={r.better === i ? { fontWeight: '700' } : undefined}>{`p = ${formatPValue(cell.pValue)}`}</Text>
+          <View
+            style={{ alignItems: 'flex-end', gap: 2 }}
+            testID={`p-${r.statistic}-${r.period}-${i}`}
+            accessibilityLabel={`p ${formatPValue(cell.pValue)}, Monte Carlo standard error ${cell.mcSe.toFixed(3)}${cell.pValue < FAIL_LEVEL ? ', fails at 0.05' : ''}, verdict ${cell.verdict ? VERDICT_WORDS[cell.verdict] : 'awaiting review'}${r.better === i ? ', better beyond Monte Carlo error' : ''}`}
+          >
+            <Text variant="figure" style={r.better === i ? { fontWeight: '700' } : undefined}>{`p = ${formatPValue(cell.pValue)} ± ${cell.mcSe.toFixed(3)}`}</Text>
             {look ? (
               <View style={{ flexDirection: 'row', alignItems: 'center', gap: 2 }}>
                 <Icon name={look.icon} size={14} color={look.fg} />
@@ -151,9 +179,19 @@ export function CompareScreen() {
               {data.columns.map((c, i) => (
                 <Card key={c.key} title={columnTitle(c)} subtitle={c.label} style={{ flexBasis: 240, flexGrow: 1 }}>
                   <Text variant="small">{c.chains ? `${c.chains} chains` : 'No batch'}</Text>
-                  <Text variant="small">
-                    {c.converged === null ? 'Values entered by hand (no convergence check).' : `${c.converged ? 'Converged' : 'Not converged'}: largest |t| ${num(c.maxAbsT)}, overall ratio ${num(c.tauMax)}`}
-                  </Text>
+                  <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }} testID={`convergence-${i}`}>
+                    {c.converged === null ? null : <Icon name={c.converged ? 'pass' : 'fail'} size={16} color={c.converged ? colors.pass : colors.fail} />}
+                    <Text variant="small" style={c.converged === false ? { color: colors.fail, fontWeight: '700' } : undefined}>
+                      {c.converged === null
+                        ? 'Convergence: no check (values entered by hand)'
+                        : `Convergence: ${c.converged ? 'pass' : 'fail'} (largest |t| ${num(c.maxAbsT)}, limit ${CONVERGENCE_T_LIMIT}; overall ratio ${num(c.tauMax)}, limit ${TAU_MAX_LIMIT})`}
+                    </Text>
+                  </View>
+                  {data.overall[i] ? (
+                    <Text variant="small" testID={`overall-${i}`}>
+                      {`Fails at ${FAIL_LEVEL}: ${data.overall[i]!.failing} of ${data.overall[i]!.tested} statistics · summed distance ${num(data.overall[i]!.distanceSum, 1)}`}
+                    </Text>
+                  ) : null}
                   {data.verdicts[i] ? (
                     <Text variant="small">{`Verdicts: ${data.verdicts[i]!.pass} pass, ${data.verdicts[i]!.fail} fail, ${data.verdicts[i]!.unsure} unsure, ${data.verdicts[i]!.awaiting} awaiting`}</Text>
                   ) : null}
@@ -162,15 +200,21 @@ export function CompareScreen() {
             </View>
           </Section>
           <RefitLine studyId={studyId} fitIds={data.columns.map((c) => c.fitId).filter((id): id is number => id != null)} />
+          <Banner tone="caution" testID="compare-independence">
+            The p-values of different statistics come from the same simulated chains and are not independent: the counts failing at 0.05 are not a joint test, and with many statistics some fail by chance.
+          </Banner>
           {data.notes.map((n) => (
             <Banner key={n} tone="info">
               {n}
             </Banner>
           ))}
-          <Section title="Estimates" description="Estimate (standard error) and the convergence t-ratio; the smaller |t| is marked better.">
+          <Section
+            title="Estimates"
+            description="Estimate (standard error) and t = estimate / SE, significant at 5% when |t| ≥ 1.96 and at 1% when |t| ≥ 2.58 (normal approximation). Rates are positive by construction and not tested. No model is marked better on its estimates; convergence is the line per model above."
+          >
             <Table label="Estimates by model" columns={estimateColumns} rows={data.estimates} rowKey={(r) => r.key} testID="compare-estimates" />
           </Section>
-          <Section title="Goodness of fit" description="Mahalanobis p-value and the team's verdict; the higher p-value is marked better.">
+          <Section title="Goodness of fit" description={`Mahalanobis p-value ± its Monte Carlo standard error, and the team's verdict. ${data.betterRule}`}>
             <Table label="p-values by model" columns={pColumns} rows={data.pValues} rowKey={(r) => `${r.statistic}-${r.period}`} testID="compare-pvalues" />
           </Section>
         </>

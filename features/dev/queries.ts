@@ -1,6 +1,6 @@
 import useSWR from 'swr';
 import type { ApiError } from '../api/client';
-import type { OutboxMessage } from '../../shared/api';
+import type { HealthResponse, OutboxMessage, UserInfo } from '../../shared/api';
 
 export const outboxKey = '/dev/outbox';
 
@@ -12,4 +12,17 @@ export function useOutbox(options: { poll?: boolean } | boolean = {}) {
     refreshInterval: poll ? 5000 : 0,
     shouldRetryOnError: false,
   });
+}
+
+/** The server's health answer (read once per session; it does not change while the server runs). */
+export function useHealth(enabled = true) {
+  return useSWR<HealthResponse, ApiError>(enabled ? '/health' : null, { revalidateOnFocus: false, shouldRetryOnError: false });
+}
+
+/**
+ * Whether the navigation shows the Outbox: only to a site admin, and only when the server says it
+ * mounts the development outbox (a missing `devOutbox` counts as false).
+ */
+export function showsOutbox(user: UserInfo | null | undefined, health: HealthResponse | undefined): boolean {
+  return user?.isAdmin === true && health?.devOutbox === true;
 }

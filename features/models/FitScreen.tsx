@@ -3,6 +3,7 @@ import { useState } from 'react';
 import { View } from 'react-native';
 import { can } from '../../shared/api';
 import { CONVERGENCE_T_LIMIT, TAU_MAX_LIMIT, type FitDetail, type FitParameter } from '../../shared/models';
+import { StaleDataBanner } from '../data/StaleDataBanner';
 import { messageOf } from '../api/client';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
@@ -165,6 +166,7 @@ export function FitScreen() {
       {error ? <LoadError message={error.message} onRetry={() => void mutate()} /> : null}
       {isLoading && !fit ? <Loading label="Loading the fit…" /> : null}
       {actionError ? <Banner tone="error">{actionError}</Banner> : null}
+      {fit && studyId !== null ? <StaleDataBanner studyId={studyId} createdAt={fit.createdAt} what="fit" /> : null}
       {fit && state ? (
         <>
           <Card>

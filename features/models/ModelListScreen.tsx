@@ -2,6 +2,7 @@ import { useLocalSearchParams } from 'expo-router';
 import { View } from 'react-native';
 import { can } from '../../shared/api';
 import type { ModelSummary } from '../../shared/models';
+import { StaleBadge } from '../data/StaleDataBanner';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
 import { Badge } from '../ui/Badge';
@@ -61,6 +62,7 @@ function columns(studyId: number): Column<ModelSummary>[] {
           <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.half }}>
             <Badge label={m.latestFit.mode === 'fixed' ? 'Values entered' : state.label} tone={state.tone} icon={state.icon} />
             {conv ? <Badge label={conv.label} tone={conv.tone} icon={conv.icon} /> : null}
+            <StaleBadge studyId={studyId} createdAt={m.latestFit.createdAt} />
           </View>
         );
       },

@@ -1,11 +1,13 @@
 /**
  * The fit report of a batch: where its review stands (verdict counts, sign-offs, whether anything
- * changed since), the lead's sign-off (who and when are recorded), and the exports: the PDF built on
- * the server, and the numbers as CSV and JSON.
+ * changed since), the lead's sign-off (who and when are recorded; a fit that did not converge or a
+ * batch with few chains needs an acknowledgement with a reason, printed in the report), and the
+ * exports: the PDF built on the server, and the numbers as CSV and JSON.
  */
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { useState } from 'react';
-import { Platform, Pressable, View } from 'react-native';
+import { View } from 'react-native';
+import { MIN_ACK_REASON } from '../../shared/review';
 import { getApiBase, messageOf } from '../api/client';
 import { useRefits } from '../refits/queries';
 import { useBatches } from '../batches/queries';
@@ -17,9 +19,10 @@ import { StudyNotFound } from '../studies/StudyNotFound';
 import { Banner } from '../ui/Banner';
 import { Button, ButtonRow } from '../ui/Button';
 import { Card } from '../ui/Card';
+import { Checkbox } from '../ui/Checkbox';
 import { EmptyState } from '../ui/EmptyState';
 import { formatDate } from '../ui/format';
-import { Icon, type IconName } from '../ui/icons';
+import { Icon } from '../ui/icons';
 import { Loading, LoadError } from '../ui/Loading';
 import { Screen, Section } from '../ui/Screen';
 import { SegmentedControl } from '../ui/SegmentedControl';
@@ -27,40 +30,11 @@ import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
 import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
-import { fonts, radius, space, touchTarget } from '../ui/tokens';
-import { useInteraction } from '../ui/useInteraction';
+import { fonts, space } from '../ui/tokens';
+import { DownloadLink } from '../ui/DownloadLink';
 
 const time = (iso: string) => `${formatDate(iso)}, ${new Date(iso).toISOString().slice(11, 16)} UTC`;
 
-/** A download link drawn as a button (an <a download> on the web, so the browser saves the file). */
-function DownloadLink({ href, label, accessibilityLabel, icon = 'outbox' }: { href: string; label: string; accessibilityLabel: string; icon?: IconName }) {
-  const { hovered, focused, handlers } = useInteraction();
-  const webProps = Platform.OS === 'web' ? ({ href, hrefAttrs: { download: '' } } as object) : {};
-  return (
-    <Pressable
-      {...handlers}
-      {...webProps}
-      accessibilityRole="link"
-      accessibilityLabel={accessibilityLabel}
-      onPress={Platform.OS === 'web' ? undefined : () => undefined}
-      style={{
-        minHeight: touchTarget,
-        paddingHorizontal: space.s2,
-        flexDirection: 'row',
-        alignItems: 'center',
-        gap: space.s1,
-        borderRadius: radius.sm,
-        borderWidth: 1,
-        borderColor: colors.ruleStrong,
-        backgroundColor: hovered ? colors.surfaceSunk : colors.surface,
-        ...(focused ? { outlineColor: colors.focus, outlineWidth: 2, outlineStyle: 'solid' as const, outlineOffset: 2 } : null),
-      }}
-    >
-      <Icon name={icon} size={18} color={colors.accent} />
-      <Text style={{ color: colors.accent, fontFamily: fonts.textBold }}>{label}</Text>
-    </Pressable>
-  );
-}
 
 export function ReportScreen() {
   const params = useLocalSearchParams<{ studyId: string; batch?: string; compare?: string; refit?: string }>();
@@ -81,6 +55,8 @@ export function ReportScreen() {
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [signed, setSigned] = useState<string | null>(null);
+  const [acknowledged, setAcknowledged] = useState(false);
+  const [reason, setReason] = useState('');
 
   if (studyId === null || study.error?.status === 404) return <StudyNotFound />;
   const s = status.data;
@@ -88,13 +64,26 @@ export function ReportScreen() {
   const compareQuery = (compare.length ? `compare=${compare.join(',')}&` : '') + (refitId !== null ? `refit=${refitId}&` : '');
   const batchName = s?.batchLabel ?? 'this batch';
 
+  const concerns = s?.concerns ?? [];
   const sign = async () => {
+    if (concerns.length > 0) {
+      if (!acknowledged) {
+        setError('Tick the acknowledgement first: this report has concerns (listed above).');
+        return;
+      }
+      if (reason.trim().length < MIN_ACK_REASON) {
+        setError(`Give a reason of at least ${MIN_ACK_REASON} characters for signing off despite the concerns.`);
+        return;
+      }
+    }
     setBusy(true);
     setError(null);
     try {
-      const signoff = await mutations.signOff(note.trim());
+      const signoff = await mutations.signOff(note.trim(), concerns.length > 0 ? reason.trim() : undefined);
       setSigned(`Signed off by ${signoff.signedBy?.name ?? 'you'} on ${time(signoff.signedAt)}. The team has been told by e-mail.`);
       setNote('');
+      setReason('');
+      setAcknowledged(false);
       setConfirming(false);
     } catch (e) {
       setError(messageOf(e));
@@ -147,14 +136,40 @@ export function ReportScreen() {
                     <Text variant="bodyStrong">{`Signed off by ${so.signedBy?.name ?? 'a former member'} on ${time(so.signedAt)}`}</Text>
                     <Text variant="caption">{`At signing: ${so.counts.pass} pass, ${so.counts.fail} fail, ${so.counts.unsure} unsure, ${so.counts.awaiting} awaiting`}</Text>
                     {so.note ? <Text variant="small">{`“${so.note}”`}</Text> : null}
+                    {so.acknowledgement ? (
+                      <View testID={`signoff-acknowledgement-${so.id}`} style={{ gap: 2 }}>
+                        <Text variant="small" style={{ color: colors.unsure, fontFamily: fonts.textBold }}>
+                          {`Signed off despite: ${so.acknowledgement.concerns.map((c) => c.message).join(' ')}`}
+                        </Text>
+                        <Text variant="small">{`Reason given: “${so.acknowledgement.reason}”`}</Text>
+                      </View>
+                    ) : null}
                   </View>
                 </View>
               ))}
             </View>
             {signed ? <Banner tone="success">{signed}</Banner> : null}
+            {concerns.length > 0 ? (
+              <Banner tone="caution" word="Concerns" testID="signoff-concerns">
+                {`${concerns.map((c) => c.message).join(' ')} A sign-off of this report needs an acknowledgement with a reason; both are printed in the report.`}
+              </Banner>
+            ) : null}
             {s.canSign ? (
               <Card>
                 <TextField label="Note with the sign-off (optional)" value={note} onChangeText={setNote} multiline maxLength={2000} />
+                {concerns.length > 0 ? (
+                  <>
+                    <Checkbox label="I have read the concerns above and sign off anyway" checked={acknowledged} onChange={setAcknowledged} />
+                    <TextField
+                      label="Reason for signing off despite the concerns (required)"
+                      value={reason}
+                      onChangeText={setReason}
+                      multiline
+                      maxLength={2000}
+                      hint={`At least ${MIN_ACK_REASON} characters; it goes into the report.`}
+                    />
+                  </>
+                ) : null}
                 {error ? <Banner tone="error">{error}</Banner> : null}
                 {confirming ? (
                   <Banner tone="caution" word="Sign off?">

@@ -14,8 +14,10 @@ export function useReportStatus(studyId: number, batchId: number | null) {
 export function useReportMutations(studyId: number, batchId: number) {
   const refresh = useReviewRefresh(studyId, batchId);
   return {
-    async signOff(note: string): Promise<SignoffDto> {
-      const res = await api.post<{ signoff: SignoffDto }>(`/studies/${studyId}/batches/${batchId}/report/signoff`, { note });
+    /** reason: why the lead signs off despite the report's concerns (sent only when there are concerns). */
+    async signOff(note: string, reason?: string): Promise<SignoffDto> {
+      const body = reason !== undefined ? { note, acknowledgement: { reason } } : { note };
+      const res = await api.post<{ signoff: SignoffDto }>(`/studies/${studyId}/batches/${batchId}/report/signoff`, body);
       await refresh();
       return res.signoff;
     },

@@ -1,13 +1,13 @@
 /**
  * The signed-in frame: a side bar on a medium or wide window, tabs at the bottom on a phone
- * (features/ui/breakpoints.ts decides). The outbox entry appears only when the server has one
- * (development and tests).
+ * (features/ui/breakpoints.ts decides). The outbox entry appears only to a site admin, and only
+ * when the server's health answer says it mounts the development outbox.
  */
 import { Link, usePathname } from 'expo-router';
 import { Pressable, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useSession } from '../auth/session';
-import { useOutbox } from '../dev/queries';
+import { showsOutbox, useHealth } from '../dev/queries';
 import { navigationOf } from '../ui/breakpoints';
 import { Icon, type IconName } from '../ui/icons';
 import { Text } from '../ui/Text';
@@ -101,8 +101,8 @@ export function AppShell({ children, cover }: { children: React.ReactNode; cover
   const pathname = usePathname() || '/';
   const { user } = useSession();
   const chrome = !cover;
-  const outbox = useOutbox(chrome);
-  const items = outbox.data ? [...baseItems, outboxItem] : baseItems;
+  const health = useHealth(chrome && user?.isAdmin === true);
+  const items = showsOutbox(user, health.data) ? [...baseItems, outboxItem] : baseItems;
   const sidebar = navigationOf(width) === 'sidebar';
 
   return (

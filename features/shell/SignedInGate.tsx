@@ -1,3 +1,4 @@
+import { useFonts } from 'expo-font';
 import { usePathname, useRouter } from 'expo-router';
 import { useEffect } from 'react';
 import { View } from 'react-native';
@@ -13,6 +14,12 @@ export function SignedInGate({ children }: { children: React.ReactNode }) {
   const pathname = usePathname() || '/';
   const router = useRouter();
   const signedOut = session.status === 'signed-out';
+  // The mono faces for figures (tables, charts): only the signed-in area uses them (see app/_layout.tsx).
+  const [monoLoaded, monoError] = useFonts({
+    'PlexMono-Regular': require('../../fonts/IBMPlexMono_400Regular.ttf'),
+    'PlexMono-Medium': require('../../fonts/IBMPlexMono_500Medium.ttf'),
+  });
+  const monoReady = monoLoaded || !!monoError;
   useEffect(() => {
     if (!signedOut) return;
     // Come back here after signing in. Once per signed-out spell: the router passes through
@@ -22,7 +29,7 @@ export function SignedInGate({ children }: { children: React.ReactNode }) {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [signedOut]);
   let cover: React.ReactNode = null;
-  if (session.status === 'loading' || signedOut) cover = <Loading label="Opening Wavefit…" fill />;
+  if (session.status === 'loading' || signedOut || !monoReady) cover = <Loading label="Opening Wavefit…" fill />;
   else if (session.status === 'error') {
     cover = (
       <View style={{ flex: 1, backgroundColor: colors.paper, padding: space.s3, justifyContent: 'center' }}>

@@ -6,7 +6,6 @@ import { Badge } from '../ui/Badge';
 import { Button } from '../ui/Button';
 import { Card } from '../ui/Card';
 import { formatDate } from '../ui/format';
-import { Icon } from '../ui/icons';
 import { Loading, LoadError } from '../ui/Loading';
 import { Screen } from '../ui/Screen';
 import { Text } from '../ui/Text';
@@ -17,7 +16,7 @@ import { useBreakpoint } from '../ui/useBreakpoint';
 import { parseStudyId, useStudy } from './queries';
 import { StudyNotFound } from './StudyNotFound';
 
-/** The parts of a study that later features fill in; each says plainly that it is not there yet. */
+/** The parts of a study, each with a line of what it is for and links to its screens. */
 const plannedSections = [
   { key: 'data', title: 'Data', what: 'Upload the waves, actors and covariates of the network.' },
   { key: 'models', title: 'Models', what: 'Choose effects and fit a model by the method of moments.' },
@@ -85,25 +84,28 @@ export function StudyOverviewScreen() {
               <Card
                 key={s.key}
                 testID={`section-${s.key}`}
-                style={{ flexBasis: compact ? 'auto' : '47%', flexGrow: 1, borderStyle: 'dashed', backgroundColor: colors.paper }}
+                style={{ flexBasis: compact ? 'auto' : '47%', flexGrow: 1 }}
                 title={s.title}
               >
                 <Text variant="muted">{s.what}</Text>
-                {s.key === 'batches' ? (
+                {s.key === 'data' ? (
+                  <View style={{ gap: space.half }} testID="data-card-links">
+                    <Text variant="caption">
+                      {study.waveCount > 0 ? `${study.waveCount} waves of ${study.actorCount} actors stored.` : 'No data stored yet.'}
+                    </Text>
+                    <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.s2 }}>
+                      <TextLink href={`/studies/${study.id}/data`}>{study.waveCount > 0 ? 'Open the waves' : 'Open the data'}</TextLink>
+                      {can(study.myRole, 'editData') ? <TextLink href={`/studies/${study.id}/data/upload`}>Upload data</TextLink> : null}
+                    </View>
+                  </View>
+                ) : s.key === 'batches' ? (
                   <TextLink href={`/studies/${study.id}/batches`}>Open the batches</TextLink>
                 ) : s.key === 'models' ? (
                   <TextLink href={`/studies/${study.id}/models`}>Open the models</TextLink>
                 ) : s.key === 'refits' ? (
                   <TextLink href={`/studies/${study.id}/refits`}>Open the re-fit studies</TextLink>
-                ) : s.key === 'board' ? (
-                  <TextLink href={`/studies/${study.id}/board`}>Open the review board</TextLink>
                 ) : (
-                  <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.half }}>
-                    <Icon name="info" size={16} color={colors.muted} />
-                    <Text variant="label" style={{ color: colors.muted }}>
-                      Not available yet.
-                    </Text>
-                  </View>
+                  <TextLink href={`/studies/${study.id}/board`}>Open the review board</TextLink>
                 )}
               </Card>
             ))}

@@ -9,6 +9,9 @@ export interface BatchPeriodContext {
   /** Observed end with missing pairs imputed: its values are written into simulated ends where endMissing is 1. */
   end: Uint8Array;
   endMissing: Uint8Array | null;
+  /** Pair mask (1 free, 0 fixed) and actor mask (1 active) of the period; null when all are free / active. */
+  free?: Uint8Array | null;
+  active?: Uint8Array | null;
   covariates: Record<string, CovariateValues>;
   centring: Record<string, CovariateCentring>;
 }

@@ -82,6 +82,8 @@ export async function loadBatchContext(dataSource: DataSource, batchId: number):
         start: net.start,
         end: net.end,
         endMissing: net.endMissing,
+        free: net.free,
+        active: net.active,
         covariates: covariates[p - 1].values,
         centring: covariates[p - 1].centring,
       };

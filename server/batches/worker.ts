@@ -36,7 +36,15 @@ export function simulateChain(context: BatchContext, periodIndex: number, chain:
   const per = context.periods[periodIndex];
   const { effects, starts } = prepare(context);
   const rng = createRng(deriveSeed(context.seed, chain, per.period));
-  const { end } = simulatePeriod({ start: starts[periodIndex], rate: per.rate, effects: effects[periodIndex], params: context.params, rng });
+  const { end } = simulatePeriod({
+    start: starts[periodIndex],
+    rate: per.rate,
+    effects: effects[periodIndex],
+    params: context.params,
+    rng,
+    ...(per.free ? { free: per.free } : {}),
+    ...(per.active ? { active: per.active } : {}),
+  });
   const n = context.n;
   if (counts) for (let k = 0; k < n * n; k++) counts[k] += end.adj[k];
   const ties = end.ties;

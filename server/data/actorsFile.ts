@@ -1,6 +1,7 @@
 /**
  * The actors file of an upload: the actor labels (their set and order) and the covariates, constant
- * (`name`) or changing (`name@1`, `name@2`, ...), numeric or categorical (shared/data.ts).
+ * (`name`) or changing (`name@1`, `name@2`, ...), numeric or categorical, and who is present at
+ * which wave (`present@1` .. `present@M`, 1 or 0) (shared/data.ts).
  */
 import type { CovariateKind } from '../../shared/data';
 import { ProblemList } from './problems';
@@ -14,7 +15,12 @@ export const CHANGING = /^(.+)@(\d+)$/;
 export interface ActorsFile {
   labels: string[];
   covariates: ParsedCovariate[];
+  /** Per wave, per actor: 1 present, 0 absent (from present@1 .. present@M), or null without those columns. */
+  presence: Uint8Array[] | null;
 }
+
+/** Columns present@1 .. present@M of the actors file say in which waves an actor belongs to the group. */
+export const PRESENCE_COLUMN = 'present';
 
 export function parseActors(file: SourceFile, waveCount: number, missingMarker: string, problems: ProblemList): ActorsFile | null {
   const [header, ...body] = file.rows;
@@ -31,6 +37,7 @@ export function parseActors(file: SourceFile, waveCount: number, missingMarker: 
   const constant = new Map<string, number>(); // name -> field position
   const changing = new Map<string, Map<number, number>>(); // name -> wave -> field position
   const seen = new Map<string, number>();
+  const presenceColumns = new Map<number, number>(); // wave -> field position
   let headerOk = true;
   header.fields.slice(1).forEach((raw, k) => {
     const column = k + 2;
@@ -45,7 +52,9 @@ export function parseActors(file: SourceFile, waveCount: number, missingMarker: 
     }
     seen.set(raw, column);
     const match = CHANGING.exec(raw);
-    if (match) {
+    if (match && match[1] === PRESENCE_COLUMN) {
+      presenceColumns.set(Number(match[2]), k + 1);
+    } else if (match) {
       const waves = changing.get(match[1]) ?? new Map<number, number>();
       waves.set(Number(match[2]), k + 1);
       changing.set(match[1], waves);
@@ -53,6 +62,27 @@ export function parseActors(file: SourceFile, waveCount: number, missingMarker: 
       constant.set(raw, k + 1);
     }
   });
+  if (constant.has(PRESENCE_COLUMN)) {
+    problems.add(
+      file.name,
+      `"${PRESENCE_COLUMN}" is the name of the presence columns; give one per wave, "${PRESENCE_COLUMN}@1" to "${PRESENCE_COLUMN}@${waveCount}", with 1 (present) or 0 (absent).`,
+      header.line,
+      constant.get(PRESENCE_COLUMN)! + 1,
+    );
+    headerOk = false;
+  }
+  if (presenceColumns.size > 0) {
+    const numbers = [...presenceColumns.keys()].sort((a, b) => a - b);
+    if (numbers.length !== waveCount || !numbers.every((w, k) => w === k + 1)) {
+      problems.add(
+        file.name,
+        `The presence columns must be "${PRESENCE_COLUMN}@1" to "${PRESENCE_COLUMN}@${waveCount}", one per wave; found @${numbers.join(', @')}.`,
+        header.line,
+        presenceColumns.get(numbers[0])! + 1,
+      );
+      headerOk = false;
+    }
+  }
   for (const [name, waves] of changing) {
     if (constant.has(name)) {
       problems.add(file.name, `"${name}" is both a constant column and a changing one ("${name}@…"); use one form.`, header.line, constant.get(name)! + 1);
@@ -111,11 +141,31 @@ export function parseActors(file: SourceFile, waveCount: number, missingMarker: 
     const categories = kind === 'categorical' ? [...new Set(observed)].sort((a, b) => a.localeCompare(b, 'en')) : [];
     covariates.push({ name, kind, changing: isChanging, categories, values });
   };
-  for (const [name, position] of constant) build(name, [position], false);
+  for (const [name, position] of constant) if (name !== PRESENCE_COLUMN) build(name, [position], false);
   for (const [name, waves] of changing) {
     build(name, [...waves.keys()].sort((a, b) => a - b).map((w) => waves.get(w)!), true);
   }
-  return { labels, covariates };
+  let presence: Uint8Array[] | null = null;
+  if (presenceColumns.size > 0) {
+    presence = Array.from({ length: waveCount }, () => new Uint8Array(labels.length));
+    cells.forEach((row, i) => {
+      for (let w = 1; w <= waveCount; w++) {
+        const position = presenceColumns.get(w)!;
+        const v = row[position];
+        if (v === '1') presence![w - 1][i] = 1;
+        else if (v !== '0') {
+          problems.add(file.name, `"${PRESENCE_COLUMN}@${w}" of "${row[0]}" is "${v}"; write 1 (present at wave ${w}) or 0 (absent).`, firstLine.get(row[0])!, position + 1);
+        }
+      }
+    });
+    presence.forEach((p, w) => {
+      const count = p.reduce((a, b) => a + b, 0);
+      if (count < 2 && labels.length >= 2) {
+        problems.add(file.name, `Only ${count} actor${count === 1 ? ' is' : 's are'} present at wave ${w + 1}; a wave needs at least 2.`, header.line, presenceColumns.get(w + 1)! + 1);
+      }
+    });
+  }
+  return { labels, covariates, presence };
 }
 
 // ---------- edge lists ----------

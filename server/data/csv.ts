@@ -3,8 +3,10 @@
  * separated by commas, or by semicolons or tabs when the first non-blank line has no comma;
  * "quoted" fields with "" for a quote; spaces around fields trimmed; blank lines skipped.
  * Follows RFC 4180 (Shafranovich 2005, Common Format and MIME Type for CSV Files) except that
- * quoted fields may not span lines.
+ * quoted fields may not span lines, and that a field written by our downloads with a leading
+ * apostrophe against formula injection (shared/csvCell.ts) is read without it.
  */
+import { restoreCell } from '../../shared/csvCell';
 
 export interface CsvRow {
   /** Line number in the file, from 1. */
@@ -92,7 +94,7 @@ export function readCsv(content: string): CsvResult {
     if (raw.trim() === '') return;
     const { fields, error } = splitCsvLine(raw, delimiter);
     if (error) problems.push({ line: k + 1, ...error });
-    else rows.push({ line: k + 1, fields });
+    else rows.push({ line: k + 1, fields: fields.map(restoreCell) });
   });
   return { rows, delimiter, problems };
 }

@@ -18,6 +18,10 @@ export interface Wave {
   adjacency: Buffer;
   /** The format the wave was uploaded in. */
   sourceFormat: DataFormat;
+  /** n*n bytes, 1 where the pair's tie is fixed at this wave (a structural zero or one); null when none is. */
+  fixed: Buffer | null;
+  /** n bytes, 1 where the actor is present at this wave; null when every actor always is. */
+  present: Buffer | null;
   createdAt: Date;
 }
 
@@ -32,6 +36,8 @@ export const WaveEntity = new EntitySchema<Wave>({
     actorCount: { type: 'integer' },
     adjacency: { type: 'blob' },
     sourceFormat: { type: 'varchar', length: 20 },
+    fixed: { type: 'blob', nullable: true },
+    present: { type: 'blob', nullable: true },
     createdAt: { type: 'datetime', createDate: true },
   },
   uniques: [{ name: 'UQ_waves_study_index', columns: ['studyId', 'index'] }],

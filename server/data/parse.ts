@@ -3,13 +3,16 @@
  * The file conventions are documented in shared/data.ts. Everything is checked before anything is
  * stored; problems name the file, line and column (the field's position, from 1).
  * This file puts an upload together (parseUpload) and reads one network file on its own
- * (parseNetworkFile); the files themselves are read by ./files.ts, ./actorsFile.ts and ./waveFiles.ts.
+ * (parseNetworkFile); the files themselves are read by ./files.ts, ./actorsFile.ts, ./waveFiles.ts
+ * and ./fixedPairsFile.ts.
  */
+import { actorsFileTitle, fixedPairsFileTitle, waveFileTitle } from '../../shared/data';
 import type { CovariateKind, DataFormat, DataProblemDetails, ParsedDataUploadBody } from '../../shared/data';
-import { parseActors } from './actorsFile';
+import { PRESENCE_COLUMN, parseActors } from './actorsFile';
 import { checkActorCount, readFile } from './files';
+import { applyFixedPairs, parseFixedPairs } from './fixedPairsFile';
 import { ProblemList } from './problems';
-import { TIE_MISSING } from './ties';
+import { TIE_PRESENT } from './ties';
 import { actorsInOrderOfAppearance, edgeListAdjacency, parseEdgeList, parseMatrix } from './waveFiles';
 
 /** Cell codes of a stored adjacency matrix (./ties.ts); imported from here by the rest of the server. */
@@ -30,6 +33,10 @@ export interface ParsedCovariate {
 export interface ParsedWave {
   label: string;
   adjacency: Uint8Array;
+  /** n*n, 1 where the pair's tie is fixed at this wave (its value is in `adjacency`); absent without a fixed-pairs file. */
+  fixed?: Uint8Array;
+  /** n, 1 where the actor is present at this wave; absent without present@ columns. */
+  present?: Uint8Array;
 }
 
 export interface ParsedStudyData {
@@ -41,10 +48,7 @@ export interface ParsedStudyData {
 
 export type ParseResult = { ok: true; data: ParsedStudyData } | { ok: false; details: DataProblemDetails };
 
-function waveFileName(label: string, position: number, fileName?: string): string {
-  const base = label ? `wave "${label}"` : `wave ${position + 1}`;
-  return fileName && fileName !== label ? `${base} (${fileName})` : base;
-}
+const waveFileName = waveFileTitle;
 
 export function parseUpload(body: ParsedDataUploadBody): ParseResult {
   const problems = new ProblemList();
@@ -61,9 +65,11 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
     else labelSeen.set(w.label, k);
   });
 
-  const actorsName = body.actors?.fileName ? `actors file (${body.actors.fileName})` : 'actors file';
+  const actorsName = actorsFileTitle(body.actors?.fileName);
   const actorsSource = body.actors ? readFile(actorsName, body.actors.content, problems) : null;
   const waveSources = body.waves.map((w, k) => readFile(names[k], w.content, problems));
+  const fixedName = fixedPairsFileTitle(body.fixedPairs?.fileName);
+  const fixedSource = body.fixedPairs ? readFile(fixedName, body.fixedPairs.content, problems) : null;
   const actorsFile = actorsSource ? parseActors(actorsSource, Math.max(waveCount, 2), marker, problems) : null;
 
   let actors: string[] | null = actorsFile?.labels ?? null;
@@ -76,7 +82,8 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
       const index = new Map(actors.map((a, i) => [a, i]));
       lists.forEach((list, k) => {
         if (!list) return;
-        const adjacency = edgeListAdjacency(list, index, names[k], problems);
+        const present = actorsFile?.presence?.[k];
+        const adjacency = edgeListAdjacency(list, index, names[k], problems, present ? { present, wave: k + 1 } : undefined);
         if (adjacency) waves.push({ label: body.waves[k].label, adjacency });
       });
     }
@@ -113,9 +120,31 @@ export function parseUpload(body: ParsedDataUploadBody): ParseResult {
         for (let i = 0; i < n; i++) {
           for (let j = 0; j < n; j++) adjacency[position[i] * n + position[j]] = m.cells[i * m.labels.length + j];
         }
-        waves.push({ label: body.waves[k].label, adjacency });
+        const present = actorsFile?.presence?.[k];
+        let ok = true;
+        if (present) {
+          for (let i = 0; i < n; i++) {
+            for (let j = 0; j < n; j++) {
+              const [a, b] = [position[i], position[j]];
+              if (m.cells[i * n + j] === TIE_PRESENT && (!present[a] || !present[b])) {
+                const away = !present[a] ? m.labels[i] : m.labels[j];
+                problems.add(names[k], `"${away}" is not present at wave ${k + 1} (${PRESENCE_COLUMN}@${k + 1} is 0 in the actors file), so the tie "${m.labels[i]}" → "${m.labels[j]}" cannot be there.`, m.rowLines[i], j + 2);
+                ok = false;
+              }
+            }
+          }
+        }
+        if (ok) waves.push({ label: body.waves[k].label, adjacency });
       });
     }
+  }
+
+  if (actors && actorsFile?.presence && waves.length === waveCount) {
+    waves.forEach((w, k) => (w.present = actorsFile.presence![k]));
+  }
+  if (fixedSource && actors) {
+    const fixed = parseFixedPairs(fixedSource, new Map(actors.map((a, i) => [a, i])), waveCount, problems);
+    if (waves.length === waveCount) applyFixedPairs(fixed, actors, waves, fixedName, problems);
   }
 
   if (actors && problems.count === 0) checkActorCount(actors, problems);
@@ -161,22 +190,4 @@ export function parseNetworkFile(name: string, content: string, format: DataForm
     return { ok: false, details: problems.details() };
   }
   return { ok: true, network };
-}
-
-// ---------- writing ----------
-
-/** Writes a wave as an adjacency-matrix CSV in the upload format (labels in the first row and column). */
-export function formatMatrixCsv(actors: readonly string[], adjacency: Uint8Array, missingMarker = 'NA'): string {
-  const n = actors.length;
-  const quote = (s: string) => (/[",;\t]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
-  const lines = [['', ...actors.map(quote)].join(',')];
-  for (let i = 0; i < n; i++) {
-    const cells: string[] = [quote(actors[i])];
-    for (let j = 0; j < n; j++) {
-      const v = adjacency[i * n + j];
-      cells.push(v === TIE_MISSING ? missingMarker : String(v));
-    }
-    lines.push(cells.join(','));
-  }
-  return lines.join('\n') + '\n';
 }

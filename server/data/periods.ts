@@ -9,6 +9,12 @@
  *   m + 1, is the start's imputed value), and that value is written into every simulated end network
  *   before statistics are computed, so those pairs neither help nor hurt the fit;
  * - comparisons of tie sets (consensus networks) use only pairs observed at the end wave;
+ * - fixed pairs (structural zeros and ones) and composition (the upload's fixed-pairs file and
+ *   present@ columns, shared/data.ts): a pair fixed at both waves of a period with the same value is
+ *   not free in that period (the simulator never offers it); an actor present at both waves is active,
+ *   any other is not (no opportunities, its pairs not free); the end value of an inactive actor's
+ *   pair is treated like a missing end tie (the start value is written into every simulated end, and
+ *   the pair takes no part in comparisons), so a joiner's first ties neither help nor hurt the fit;
  * - a covariate that changes between waves uses its column for wave m in period m; its mean, range and
  *   mean similarity are taken over the columns of waves 1 .. M-1, so every period is centred alike.
  */
@@ -29,6 +35,10 @@ export interface PeriodNetworks {
   endMissing: Uint8Array | null;
   /** 1 for pairs that take part in comparisons: off-diagonal and observed at the end wave. */
   compareMask: Uint8Array;
+  /** Pair mask for the simulator (1 free, 0 fixed in this period), or null when every pair is free. */
+  free: Uint8Array | null;
+  /** Actor mask for the simulator (1 active), or null when every actor is active. */
+  active: Uint8Array | null;
 }
 
 /** Start and end networks of every period (M - 1 of them). */
@@ -52,6 +62,16 @@ export function periodNetworks(data: LoadedStudyData): PeriodNetworks[] {
   const periods: PeriodNetworks[] = [];
   for (let m = 1; m < M; m++) {
     const endWave = data.waves[m];
+    const [fixedA, fixedB] = [data.fixed?.[m - 1] ?? null, data.fixed?.[m] ?? null];
+    const [presentA, presentB] = [data.present?.[m - 1] ?? null, data.present?.[m] ?? null];
+    let active: Uint8Array | null = null;
+    if (presentA || presentB) {
+      active = new Uint8Array(n);
+      for (let i = 0; i < n; i++) active[i] = (presentA ? presentA[i] : 1) && (presentB ? presentB[i] : 1) ? 1 : 0;
+    }
+    const start = imputed[m - 1];
+    let end = imputed[m];
+    let free: Uint8Array | null = null;
     let anyMissing = false;
     const endMissing = new Uint8Array(n * n);
     const compareMask = new Uint8Array(n * n);
@@ -59,7 +79,19 @@ export function periodNetworks(data: LoadedStudyData): PeriodNetworks[] {
       for (let j = 0; j < n; j++) {
         if (i === j) continue;
         const k = i * n + j;
-        if (endWave[k] === MISSING) {
+        if (fixedA && fixedB && fixedA[k] && fixedB[k] && start[k] === end[k]) {
+          free ??= new Uint8Array(n * n).fill(1);
+          free[k] = 0;
+        }
+        if (active && (!active[i] || !active[j])) {
+          // not simulated in this period: like a missing end tie, the start value stands in for it
+          if (end[k] !== start[k]) {
+            if (end === imputed[m]) end = end.slice();
+            end[k] = start[k];
+          }
+          endMissing[k] = 1;
+          anyMissing = true;
+        } else if (endWave[k] === MISSING) {
           endMissing[k] = 1;
           anyMissing = true;
         } else {
@@ -67,7 +99,7 @@ export function periodNetworks(data: LoadedStudyData): PeriodNetworks[] {
         }
       }
     }
-    periods.push({ period: m, start: imputed[m - 1], end: imputed[m], endMissing: anyMissing ? endMissing : null, compareMask });
+    periods.push({ period: m, start, end, endMissing: anyMissing ? endMissing : null, compareMask, free, active });
   }
   return periods;
 }

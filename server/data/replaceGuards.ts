@@ -1,28 +1,76 @@
 /**
- * Hooks that may refuse replacing a study's data, because stored work depends on it.
- *
- * HOOK for later engineers: when model specifications, fits or batches are stored, add a guard
- * here, e.g.
- *   async (manager, studyId) =>
- *     (await manager.getRepository(ModelSpecEntity).countBy({ studyId })) > 0
- *       ? 'This study has models; delete them (or start a new study) before replacing its data.'
- *       : null,
- * A guard returns null to allow, or the message of the 409 data_in_use refusal. Guards run inside
- * the upload's transaction, before anything is deleted.
+ * What stands in the way of replacing a study's data, because stored work depends on it.
+ * - `dataReplaceInfo` counts models, fits and batches built on the stored data (they become stale
+ *   when it is replaced, so replacing them needs the uploader's confirmation) and the fits and
+ *   batches still queued or running (their workers read the data, so replacing waits for them).
+ * - `DATA_REPLACE_GUARDS` are the hooks `replaceStudyData` runs inside its transaction, before
+ *   anything is deleted. A guard returns null to allow, or the message of the 409 data_in_use
+ *   refusal. Add one here when a new kind of stored work depends on the data.
  */
-import type { EntityManager } from 'typeorm';
+import { In, type EntityManager } from 'typeorm';
+import type { DataReplaceInfo } from '../../shared/data';
 import { BatchEntity } from '../batches/entities';
-import { ModelSpecEntity } from '../models/entities';
+import { WaveEntity } from './entities';
+import { FitEntity, ModelSpecEntity } from '../models/entities';
 
-export type DataReplaceGuard = (manager: EntityManager, studyId: number) => Promise<string | null>;
+export interface ReplaceContext {
+  /** The uploader confirmed that dependent work becomes stale. */
+  confirmed: boolean;
+}
+
+export type DataReplaceGuard = (manager: EntityManager, studyId: number, context: ReplaceContext) => Promise<string | null>;
+
+const ACTIVE = ['queued', 'running'];
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : word.endsWith('h') ? 'es' : 's'}`;
+}
+
+export async function dataReplaceInfo(manager: EntityManager, studyId: number): Promise<DataReplaceInfo> {
+  const [waves, models, fits, batches, runningFits, runningBatches] = await Promise.all([
+    manager.getRepository(WaveEntity).countBy({ studyId }),
+    manager.getRepository(ModelSpecEntity).countBy({ studyId }),
+    manager.getRepository(FitEntity).countBy({ studyId }),
+    manager.getRepository(BatchEntity).countBy({ studyId }),
+    manager.getRepository(FitEntity).countBy({ studyId, state: In(ACTIVE) }),
+    manager
+      .getRepository(BatchEntity)
+      .createQueryBuilder('b')
+      .innerJoin('jobs', 'j', 'j.id = b.jobId')
+      .where('b.studyId = :studyId', { studyId })
+      .andWhere('j.state IN (:...active)', { active: ACTIVE })
+      .getCount(),
+  ]);
+  const parts: string[] = [];
+  if (models) parts.push(plural(models, 'model'));
+  if (fits) parts.push(plural(fits, 'fit'));
+  if (batches) parts.push(plural(batches, 'batch'));
+  const stale =
+    waves > 0 && parts.length
+      ? `${parts.join(', ')} ${models + fits + batches === 1 ? 'was' : 'were'} built on the data stored now. ` +
+        'They stay in the study, but their estimates, simulations and verdicts describe the old data, not the new: treat them as stale and fit again.'
+      : null;
+  return {
+    hasData: waves > 0,
+    models,
+    fits,
+    batches,
+    running: runningFits + runningBatches,
+    needsConfirmation: stale !== null,
+    stale,
+  };
+}
 
 export const DATA_REPLACE_GUARDS: readonly DataReplaceGuard[] = [
-  async (manager, studyId) =>
-    (await manager.getRepository(ModelSpecEntity).countBy({ studyId })) > 0
-      ? 'This study has models (and perhaps fits) built on its data; delete them first, or start a new study for other data.'
-      : null,
-  async (manager, studyId) =>
-    (await manager.getRepository(BatchEntity).countBy({ studyId })) > 0
-      ? 'This study has simulation batches compared with its data; start a new study to use other data.'
-      : null,
+  async (manager, studyId) => {
+    const info = await dataReplaceInfo(manager, studyId);
+    return info.running > 0
+      ? `${info.running === 1 ? 'A fit or batch is' : `${info.running} fits or batches are`} still queued or running on the stored data; wait until ${info.running === 1 ? 'it ends' : 'they end'} (or cancel ${info.running === 1 ? 'it' : 'them'}) before replacing the data.`
+      : null;
+  },
+  async (manager, studyId, { confirmed }) => {
+    if (confirmed) return null;
+    const info = await dataReplaceInfo(manager, studyId);
+    return info.stale ? `${info.stale} Confirm the replacement to go ahead.` : null;
+  },
 ];

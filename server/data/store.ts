@@ -5,11 +5,11 @@
  * - studyDataView / waveTies: the API responses.
  */
 import type { DataSource, EntityManager } from 'typeorm';
-import type { StudyDataResponse, WaveTiesResponse } from '../../shared/data';
+import type { DataFormat, DataPreviewResponse, FixedPairInfo, StudyDataResponse, WaveTiesResponse } from '../../shared/data';
 import { conflict } from '../errors';
 import { StudyEntity } from '../studies/entities';
 import { ActorEntity, CovariateEntity, WaveEntity, type Covariate, type Wave } from './entities';
-import { TIE_MISSING, TIE_PRESENT, type ParsedStudyData } from './parse';
+import { TIE_MISSING, TIE_PRESENT, type ParsedCovariate, type ParsedStudyData } from './parse';
 import { DATA_REPLACE_GUARDS, type DataReplaceGuard } from './replaceGuards';
 import { compareWaves, summarizeCovariate, summarizeWave } from './summaries';
 
@@ -19,13 +19,14 @@ export async function replaceStudyData(
   studyId: number,
   data: ParsedStudyData,
   guards: readonly DataReplaceGuard[] = DATA_REPLACE_GUARDS,
+  options: { confirmReplace?: boolean } = {},
 ): Promise<{ replaced: boolean }> {
   return dataSource.transaction(async (manager: EntityManager) => {
     const waves = manager.getRepository(WaveEntity);
     const replaced = (await waves.countBy({ studyId })) > 0;
     if (replaced) {
       for (const guard of guards) {
-        const refusal = await guard(manager, studyId);
+        const refusal = await guard(manager, studyId, { confirmed: options.confirmReplace === true });
         if (refusal) throw conflict('data_in_use', refusal);
       }
     }
@@ -43,6 +44,8 @@ export async function replaceStudyData(
         actorCount: n,
         adjacency: Buffer.from(wave.adjacency.buffer, wave.adjacency.byteOffset, wave.adjacency.byteLength),
         sourceFormat: data.format,
+        fixed: wave.fixed && wave.fixed.some((v) => v !== 0) ? Buffer.from(wave.fixed) : null,
+        present: wave.present && wave.present.some((v) => v === 0) ? Buffer.from(wave.present) : null,
       });
     }
     if (data.covariates.length) {
@@ -82,6 +85,10 @@ export interface LoadedStudyData {
   waveLabels: string[];
   /** One row-major n*n matrix per wave (sender row, receiver column): 0 no tie, 1 tie, 2 missing. */
   waves: Uint8Array[];
+  /** Per wave: n*n, 1 where the pair's tie is fixed at that wave (its value in `waves`); null when no pair is. */
+  fixed: Array<Uint8Array | null>;
+  /** Per wave: n, 1 where the actor is present; null when every actor is. */
+  present: Array<Uint8Array | null>;
   covariates: Record<string, LoadedCovariate>;
 }
 
@@ -125,27 +132,114 @@ export async function loadStudyData(dataSource: DataSource, studyId: number): Pr
     actors: rows.actors.map((a) => a.label),
     waveLabels: rows.waves.map((w) => w.label),
     waves: rows.waves.map(adjacencyOf),
+    fixed: rows.waves.map((w) => (w.fixed ? new Uint8Array(w.fixed) : null)),
+    present: rows.waves.map((w) => (w.present ? new Uint8Array(w.present) : null)),
     covariates,
   };
 }
 
 // ---------- API views ----------
 
+/**
+ * Pairs of an actor absent at a wave count as not observed in the summaries (density, reciprocity,
+ * change): they are marked missing in a copy, and not counted among the missing pairs.
+ */
+function forSummary(n: number, adjacency: Uint8Array, present: Uint8Array | null | undefined): { cells: Uint8Array; absentPairs: number; absent: number } {
+  if (!present) return { cells: adjacency, absentPairs: 0, absent: 0 };
+  const cells = adjacency.slice();
+  let absentPairs = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      if (i === j || (present[i] && present[j])) continue;
+      if (cells[i * n + j] !== TIE_MISSING) absentPairs++;
+      cells[i * n + j] = TIE_MISSING;
+    }
+  }
+  return { cells, absentPairs, absent: present.reduce((s, v) => s + (v ? 0 : 1), 0) };
+}
+
+interface ViewInput {
+  format: DataFormat;
+  actors: string[];
+  waves: Array<{ index: number; label: string; adjacency: Uint8Array; fixed: Uint8Array | null; present: Uint8Array | null }>;
+  covariates: ParsedCovariate[];
+}
+
+/** Fixed pairs grouped by pair and value, with the waves they hold in. */
+function fixedPairList(actors: string[], waves: ViewInput['waves']): FixedPairInfo[] {
+  const n = actors.length;
+  const groups = new Map<string, FixedPairInfo>();
+  waves.forEach((w) => {
+    if (!w.fixed) return;
+    for (let k = 0; k < n * n; k++) {
+      if (!w.fixed[k]) continue;
+      const value = (w.adjacency[k] === TIE_PRESENT ? 1 : 0) as 0 | 1;
+      const key = `${k}:${value}`;
+      const g = groups.get(key) ?? { sender: actors[Math.floor(k / n)], receiver: actors[k % n], value, waves: [] };
+      g.waves.push(w.index);
+      groups.set(key, g);
+    }
+  });
+  return [...groups.values()];
+}
+
+function viewOf(input: ViewInput): Omit<StudyDataResponse, 'hasData' | 'uploadedAt'> {
+  const n = input.actors.length;
+  const prepared = input.waves.map((w) => forSummary(n, w.adjacency, w.present));
+  const fixed = fixedPairList(input.actors, input.waves);
+  const anyPresence = input.waves.some((w) => w.present);
+  return {
+    format: input.format,
+    actors: input.actors,
+    // stored covariates are read back by name (readRows); list them so here too
+    covariates: [...input.covariates].sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0)).map(summarizeCovariate),
+    waves: input.waves.map((w, k) => {
+      const summary = summarizeWave(w.index, w.label, n, prepared[k].cells);
+      if (!w.present && !anyPresence) return summary;
+      return { ...summary, missing: summary.missing - prepared[k].absentPairs, absent: prepared[k].absent };
+    }),
+    changes: input.waves.slice(1).map((w, k) => compareWaves(input.waves[k].index, w.index, n, prepared[k].cells, prepared[k + 1].cells)),
+    ...(fixed.length ? { fixed, fixedPairs: new Set(fixed.map((f) => `${f.sender}\u0000${f.receiver}`)).size } : {}),
+    ...(anyPresence ? { presence: input.actors.map((_, i) => input.waves.map((w) => !w.present || w.present[i] === 1)) } : {}),
+  };
+}
+
+/** The summaries of a parsed (not stored) upload: what the preview shows, from the same code as the stored view. */
+export function parsedDataView(data: ParsedStudyData): Extract<DataPreviewResponse, { ok: true }>['preview'] {
+  return viewOf({
+    format: data.format,
+    actors: data.actors,
+    covariates: data.covariates,
+    waves: data.waves.map((w, k) => ({
+      index: k + 1,
+      label: w.label,
+      adjacency: w.adjacency,
+      fixed: w.fixed && w.fixed.some((v) => v !== 0) ? w.fixed : null,
+      present: w.present && w.present.some((v) => v === 0) ? w.present : null,
+    })),
+  });
+}
+
 export async function studyDataView(dataSource: DataSource, studyId: number): Promise<StudyDataResponse> {
   const rows = await readRows(dataSource, studyId);
   if (rows.waves.length === 0) {
     return { hasData: false, format: null, uploadedAt: null, actors: [], covariates: [], waves: [], changes: [] };
   }
-  const n = rows.actors.length;
-  const matrices = rows.waves.map(adjacencyOf);
   return {
     hasData: true,
-    format: rows.waves[0].sourceFormat,
     uploadedAt: rows.waves[0].createdAt.toISOString(),
-    actors: rows.actors.map((a) => a.label),
-    covariates: rows.covariates.map((c) => summarizeCovariate({ ...c, changing: Boolean(c.changing) })),
-    waves: rows.waves.map((w, k) => summarizeWave(w.index, w.label, n, matrices[k])),
-    changes: rows.waves.slice(1).map((w, k) => compareWaves(rows.waves[k].index, w.index, n, matrices[k], matrices[k + 1])),
+    ...viewOf({
+      format: rows.waves[0].sourceFormat,
+      actors: rows.actors.map((a) => a.label),
+      covariates: rows.covariates.map((c) => ({ ...c, changing: Boolean(c.changing) })),
+      waves: rows.waves.map((w) => ({
+        index: w.index,
+        label: w.label,
+        adjacency: adjacencyOf(w),
+        fixed: w.fixed ? new Uint8Array(w.fixed) : null,
+        present: w.present ? new Uint8Array(w.present) : null,
+      })),
+    }),
   };
 }
 

@@ -5,6 +5,7 @@
  */
 import { ProblemList } from './problems';
 import { checkLabel, type SourceFile } from './files';
+import { PRESENCE_COLUMN } from './actorsFile';
 import { TIE_ABSENT, TIE_MISSING, TIE_PRESENT } from './ties';
 
 export const HEADER_PAIRS = [
@@ -65,6 +66,8 @@ export interface MatrixFile {
   /** Row-major codes in the file's own order. */
   cells: Uint8Array;
   headerLine: number;
+  /** Line of each row, in the file's order. */
+  rowLines: number[];
 }
 
 export function parseMatrix(file: SourceFile, missingMarker: string, problems: ProblemList): MatrixFile | null {
@@ -123,7 +126,7 @@ export function parseMatrix(file: SourceFile, missingMarker: string, problems: P
       cells[i * n + j] = code;
     }
   });
-  return problems.count > start ? null : { labels, cells, headerLine: header.line };
+  return problems.count > start ? null : { labels, cells, headerLine: header.line, rowLines: body.slice(0, n).map((r) => r.line) };
 }
 
 /** Without an actors file: the labels met in the edge lists, in order of first appearance. */
@@ -133,8 +136,17 @@ export function actorsInOrderOfAppearance(lists: Array<EdgeEntry[] | null>): str
   return [...order];
 }
 
-/** One wave's adjacency from its edge list over the actor index; null (with problems) for unknown actors. */
-export function edgeListAdjacency(list: EdgeEntry[], index: Map<string, number>, name: string, problems: ProblemList): Uint8Array | null {
+/**
+ * One wave's adjacency from its edge list over the actor index; null (with problems) for unknown
+ * actors, or for ties of an actor not present at this wave (`present`, 1 = present, with its wave number).
+ */
+export function edgeListAdjacency(
+  list: EdgeEntry[],
+  index: Map<string, number>,
+  name: string,
+  problems: ProblemList,
+  presence?: { present: Uint8Array; wave: number },
+): Uint8Array | null {
   const n = index.size;
   const adjacency = new Uint8Array(n * n);
   let ok = true;
@@ -144,6 +156,13 @@ export function edgeListAdjacency(list: EdgeEntry[], index: Map<string, number>,
     if (s === undefined || r === undefined) {
       const label = s === undefined ? e.sender : e.receiver;
       problems.add(name, `Unknown actor "${label}": not in the actors file.`, e.line, s === undefined ? 1 : 2);
+      ok = false;
+      continue;
+    }
+    const present = presence?.present;
+    if (present && e.value === TIE_PRESENT && (!present[s] || !present[r])) {
+      const away = !present[s] ? e.sender : e.receiver;
+      problems.add(name, `"${away}" is not present at wave ${presence.wave} (${PRESENCE_COLUMN}@${presence.wave} is 0 in the actors file), so this tie cannot be there.`, e.line, !present[s] ? 1 : 2);
       ok = false;
       continue;
     }

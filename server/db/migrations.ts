@@ -17,6 +17,18 @@ import { JobQueue1733100000500 } from '../jobs/migration';
 import { Batches1733100000900 } from '../batches/migration';
 import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
-import { Refits1733100001400 } from '../refits/migration';
+import { FixedPairsAndPresence1733100001300 } from '../data/migrations/0003-FixedPairsAndPresence';
+import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
+import { Refits1733100002000 } from '../refits/migration';
 
-export const migrations = [Accounts1733100000001, StudyData1733100000002, JobQueue1733100000500, Batches1733100000900, Models1733100001000, Review1733100001200, Refits1733100001400];
+export const migrations = [
+  Accounts1733100000001,
+  StudyData1733100000002,
+  JobQueue1733100000500,
+  Batches1733100000900,
+  Models1733100001000,
+  Review1733100001200,
+  FixedPairsAndPresence1733100001300,
+  SignoffAcknowledgement1733100001900,
+  Refits1733100002000,
+];

@@ -1,4 +1,8 @@
-/** /api/health: is the server up, and which version. Checks the database with a trivial query. */
+/**
+ * /api/health: is the server up, which version, and whether it mounts the development outbox
+ * (`devOutbox`; the same condition as server/app.ts uses to mount /api/dev). Checks the database with
+ * a trivial query.
+ */
 import { Router } from 'express';
 import type { RouteDeps } from '../deps';
 
@@ -6,7 +10,7 @@ export function healthRouter(deps: RouteDeps): Router {
   const router = Router();
   router.get('/', async (_req, res) => {
     await deps.dataSource.query('SELECT 1');
-    res.json({ ok: true, version: deps.config.version });
+    res.json({ ok: true, version: deps.config.version, devOutbox: !deps.config.isProduction });
   });
   return router;
 }

@@ -23,6 +23,9 @@ export interface FitPeriodData {
   start: Uint8Array;
   end: Uint8Array;
   endMissing: Uint8Array | null;
+  /** Pairs fixed in this period (0) and active actors (1); null when all are free / active. */
+  free: Uint8Array | null;
+  active: Uint8Array | null;
   covariates: Record<string, CovariateValues>;
   centring: Record<string, CovariateCentring>;
 }
@@ -57,6 +60,8 @@ export function fitPeriods(data: LoadedStudyData, spec: StoredSpec): FitPeriodDa
       start: net.start,
       end: net.end,
       endMissing: net.endMissing,
+      free: net.free,
+      active: net.active,
       covariates: covariates[r.period - 1].values,
       centring: covariates[r.period - 1].centring,
     };
@@ -70,6 +75,8 @@ export function periodInputs(periods: FitPeriodData[], spec: StoredSpec): Period
     start: p.start,
     end: p.end,
     ...(p.endMissing ? { endMissing: p.endMissing } : {}),
+    ...(p.free ? { free: p.free } : {}),
+    ...(p.active ? { active: p.active } : {}),
     effects: buildEffects(specs, p.covariates, p.centring),
     label: p.label,
   }));

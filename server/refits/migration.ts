@@ -1,11 +1,11 @@
 /**
  * Migration: re-fit studies (refits, refit_results). Listed in server/db/migrations.ts, after the
- * review tables.
+ * sign-off acknowledgement.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 
-export class Refits1733100001400 implements MigrationInterface {
-  name = 'Refits1733100001400';
+export class Refits1733100002000 implements MigrationInterface {
+  name = 'Refits1733100002000';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(

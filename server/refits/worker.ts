@@ -1,7 +1,8 @@
 /**
  * Re-fit worker: one chunk is one re-fit. It simulates replication r of the source model's panel
  * (from the observed start wave of the first covered period, each later period starting from the
- * simulated end of the one before, with the source fit's values and the engine's simulator), then
+ * simulated end of the one before, with the source fit's values and the engine's simulator; fixed
+ * pairs and absent actors of the observed data stay so in the panels), then
  * fits the target model to it with the estimator's public entry (fitSaom), starting from the target
  * fit's own values and, when it has one, its Phase 3 derivative matrix (as "continue from a fit" does).
  *
@@ -37,7 +38,7 @@ export function simulatePanel(context: RefitContext, source: number, replication
     const rate = value(rateKey(per.period));
     if (!(rate > 0)) throw new Error(`refit: model ${source + 1} has no positive rate for period ${per.period}`);
     const rng = createRng(deriveSeed(context.seed, 1, source, replication, per.period));
-    const { end } = simulatePeriod({ start, rate, effects, params, rng });
+    const { end } = simulatePeriod({ start, rate, effects, params, rng, ...(per.free ? { free: per.free } : {}), ...(per.active ? { active: per.active } : {}) });
     out.push({ ...per, start: Uint8Array.from(start.adj), end: Uint8Array.from(end.adj), endMissing: null });
     previous = { period: per.period, end };
   }

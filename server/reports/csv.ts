@@ -1,7 +1,8 @@
 /**
  * CSV exports of a fit report's numbers (RFC 4180: comma-separated, fields with commas, quotes or
  * line breaks quoted, CRLF line ends): the goodness-of-fit table (one row per statistic, period and
- * component) and the estimates table (one row per parameter).
+ * component, with the newest sign-off and any acknowledged concerns and reason on every row) and the
+ * estimates table (one row per parameter).
  */
 import type { ReportJson } from '../../shared/review';
 
@@ -17,7 +18,15 @@ export function gofCsv(report: ReportJson): string {
   const coverages = report.statistics[0]?.bands.map((b) => b.coverage).sort((a, b) => a - b) ?? [];
   const bandCols = coverages.flatMap((c) => [`band${Math.round(c * 100)}_lower`, `band${Math.round(c * 100)}_upper`]);
   const rows = [
-    line(['batch', 'statistic', 'period', 'component', 'observed', 'simulated_mean', 'simulated_sd', ...bandCols, 'p_value', 'p_value_simulated_only', 'mahalanobis_distance', 'chains', 'verdict', 'verdict_note', 'verdict_by', 'verdict_at']),
+    line(['batch', 'statistic', 'period', 'component', 'observed', 'simulated_mean', 'simulated_sd', ...bandCols, 'p_value', 'p_value_simulated_only', 'mahalanobis_distance', 'chains', 'verdict', 'verdict_note', 'verdict_by', 'verdict_at', 'signed_off_by', 'signed_off_at', 'signoff_concerns', 'signoff_reason']),
+  ];
+  // The newest sign-off, repeated on every row (empty when not signed); concerns and reason only when acknowledged.
+  const signoff = report.signoffs[0];
+  const signoffFields = [
+    signoff ? (signoff.signedBy?.name ?? 'a former member') : '',
+    signoff?.signedAt ?? '',
+    signoff?.acknowledgement?.concerns.map((c) => c.message).join(' ') ?? '',
+    signoff?.acknowledgement?.reason ?? '',
   ];
   for (const s of report.statistics) {
     s.components.forEach((component, k) => {
@@ -43,6 +52,7 @@ export function gofCsv(report: ReportJson): string {
           s.verdict?.note ?? '',
           s.verdict?.updatedBy?.name ?? '',
           s.verdict?.updatedAt ?? '',
+          ...signoffFields,
         ]),
       );
     });

@@ -65,28 +65,43 @@ function comparisonSection(w: Writer, cmp: CompareResponse): void {
   w.need(220);
   w.heading('Comparison of models');
   w.text(
-    'Each column is a candidate model with its simulation batch. A check marks the better value in a row: for an estimate, the smaller convergence t-ratio in absolute value; for a statistic, the higher p-value.',
+    'Each column is a candidate model with its simulation batch. Estimates carry their standard error and the t-statistic estimate / SE with its significance; convergence is a separate line per model. A check marks a p-value only where it is higher than the others beyond Monte Carlo error.',
     { size: 9, colour: C.muted, gap: 6 },
   );
   const head = (c: CompareResponse['columns'][number]) => `${c.modelName ?? c.label}${c.batchId ? ` (batch ${c.batchId})` : ` (fit ${c.fitId})`}`;
+  const colsOf = (first: string) => [{ title: first, width: 2.2 }, ...cmp.columns.map((c) => ({ title: head(c), width: 1.6, align: 'right' as const, mono: true }))];
+  table(w, colsOf('Convergence'), [
+    {
+      cells: ['Fit converged', ...cmp.columns.map((c) => (c.converged === null ? 'no check' : `${c.converged ? 'pass' : 'FAIL'} (max |t| ${num(c.maxAbsT, 2)})`))],
+    },
+  ]);
   table(
     w,
-    [{ title: 'Parameter', width: 2.2 }, ...cmp.columns.map((c) => ({ title: head(c), width: 1.6, align: 'right' as const, mono: true }))],
+    colsOf('Parameter'),
     cmp.estimates.map((r) => ({
-      cells: [r.label, ...r.cells.map((c) => (c ? `${num(c.value)}${c.se !== null ? ` (${num(c.se)})` : ''}${c.convergenceT !== null ? ` t=${num(c.convergenceT, 2)}` : ''}` : '—'))],
-      better: r.better === null ? [] : [r.better + 1],
+      cells: [
+        r.label,
+        ...r.cells.map((c) => (c ? `${num(c.value)}${c.se !== null ? ` (${num(c.se)})` : ''}${c.t !== null ? ` t=${num(c.t, 2)}${c.significance === 'none' ? '' : c.significance === 'p1' ? '**' : '*'}` : ''}` : '—')),
+      ],
     })),
-    { caption: 'Estimate (standard error) and convergence t-ratio.' },
+    { caption: 'Estimate (standard error) and t = estimate / SE; * significant at 5%, ** at 1% (normal quantiles). Rates are not tested.' },
   );
   table(
     w,
-    [{ title: 'Statistic', width: 2.2 }, ...cmp.columns.map((c) => ({ title: head(c), width: 1.6, align: 'right' as const, mono: true }))],
+    colsOf('Statistic'),
     cmp.pValues.map((r) => ({
-      cells: [`${r.label}, period ${r.period}`, ...r.cells.map((c) => (c ? `p = ${formatPValue(c.pValue)}${c.verdict ? ` ${VERDICT_WORDS[c.verdict].toLowerCase()}` : ''}` : '—'))],
+      cells: [
+        `${r.label}, period ${r.period}`,
+        ...r.cells.map((c) => (c ? `p = ${formatPValue(c.pValue)} ± ${c.mcSe.toFixed(3)}${c.verdict ? ` ${VERDICT_WORDS[c.verdict].toLowerCase()}` : ''}` : '—')),
+      ],
       better: r.better === null ? [] : [r.better + 1],
     })),
-    { caption: 'Mahalanobis p-value and the team’s verdict per statistic.' },
+    { caption: `Mahalanobis p-value ± its Monte Carlo standard error, and the team’s verdict. ${cmp.betterRule}` },
   );
+  table(w, colsOf('Overall'), [
+    { cells: ['Failing at 0.05', ...cmp.overall.map((o) => (o ? `${o.failing} of ${o.tested}` : '—'))] },
+    { cells: ['Summed distance', ...cmp.overall.map((o) => (o?.distanceSum != null ? num(o.distanceSum, 1) : '—'))] },
+  ], { caption: 'Caution: the p-values of different statistics come from the same chains and are not independent; these counts are not a joint test.' });
   table(
     w,
     [{ title: 'Verdicts', width: 2.2 }, ...cmp.columns.map((c) => ({ title: head(c), width: 1.6, align: 'right' as const, mono: true }))],
@@ -175,6 +190,11 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
         colour: C.muted,
       });
       if (latest.note) lines.push({ text: `“${latest.note}”`, font: 'text', size: 9.5, colour: C.ink });
+      if (latest.acknowledgement) {
+        lines.push({ text: 'Signed off despite these concerns:', font: 'bold', size: 9.5, colour: C.unsure });
+        for (const c of latest.acknowledgement.concerns) lines.push({ text: `• ${c.message}`, font: 'text', size: 9, colour: C.ink });
+        lines.push({ text: `Reason given: “${latest.acknowledgement.reason}”`, font: 'text', size: 9.5, colour: C.ink });
+      }
       if (report.changedSinceSignoff) lines.push({ text: 'Caution: verdicts or comments changed after this sign-off; this copy shows them as they are now.', font: 'bold', size: 9, colour: C.unsure });
     } else {
       lines.push({ text: 'Draft: not signed off', font: 'bold', size: 11, colour: C.unsure });

@@ -1,21 +1,23 @@
 /**
  * The fit report of a batch (contract in shared/review.ts): its status and sign-offs, the lead's
- * sign-off (ability signReport; recorded with who and when, and the team is notified), and the
+ * sign-off (ability signReport; recorded with who and when, and the team is notified; a report with
+ * concerns (non-converged fit, few chains) needs an acknowledged reason, see signoffGuard.ts), and the
  * exports: PDF (pdfkit, fonts embedded), CSV and JSON. Mounted at /api.
  */
 import { Router, type Request } from 'express';
 import { can } from '../../shared/api';
-import { parseIdList, signoffBodySchema, type ReportStatus } from '../../shared/review';
+import { parseIdList, signoffBodySchema, type ReportStatus, type SignoffBody } from '../../shared/review';
 import { currentStudy, currentUser } from '../auth/context';
 import { badRequest, idParam, validate } from '../errors';
 import { syncDb } from '../db/sync';
 import type { RouteDeps } from '../deps';
 import { GofCache } from '../review/gofData';
 import type { ReviewRouter } from '../review/routes';
-import { changedSince, loadReviewBatch, verdictCounts } from '../review/service';
+import { changedSince, loadReviewBatch, requireDone, verdictCounts } from '../review/service';
 import { signOff, signoffsOf } from '../review/signoffs';
 import { estimatesCsv, gofCsv } from './csv';
 import { reportPdf } from './pdf';
+import { acknowledgementFor, concernsOf } from './signoffGuard';
 import { buildReport } from './reportData';
 import { getRefit, refitResults } from '../refits/service';
 import type { RefitResults } from '../../shared/refits';
@@ -65,12 +67,18 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
       signoffs,
       changedSinceSignoff: changedSince(db, batch.row.id, signoffs[0]),
       canSign: currentUser(req).isAdmin || can(role, 'signReport'),
+      concerns: concernsOf(dataSource, batch),
     };
     res.json(body);
   });
 
   router.post(`${B}/report/signoff`, ...member('signReport'), validate(signoffBodySchema), async (req, res) => {
-    const signoff = await signOff(dataSource, batchOf(req), currentUser(req), (req.body as { note: string }).note);
+    const body = req.body as SignoffBody & { note: string };
+    const batch = batchOf(req);
+    requireDone(batch);
+    // A non-converged fit or a batch with few chains is signed off only with an acknowledged reason.
+    const acknowledgement = acknowledgementFor(concernsOf(dataSource, batch), body);
+    const signoff = await signOff(dataSource, batch, currentUser(req), body.note, acknowledgement);
     await review.notifier.flush();
     res.status(201).json({ signoff });
   });

@@ -1,20 +1,35 @@
 /**
- * Comparing two to four candidate models side by side: per parameter the value with its standard error
- * and convergence t-ratio (the better one per row is the smallest |t|), per statistic and period the
- * Mahalanobis p-value with the team's verdict (the better one per row is the highest p), and the
- * verdict counts. Items are batches (a fit's simulated check) or fits (estimates only).
+ * Comparing two to four candidate models side by side:
+ * - per parameter the estimate, its standard error and the t-statistic estimate / SE with a
+ *   significance word (normal quantiles, common practice; rates are not tested against 0). The
+ *   fit's convergence t-ratio is kept in the cell but is no mark of a better model: convergence is
+ *   shown per model as a pass/fail line (CompareColumn.converged).
+ * - per statistic and period the Mahalanobis p-value with its Monte Carlo standard error
+ *   sqrt(p(1 - p) / N) for N chains (Davison & Hinkley 1997, Bootstrap Methods and their
+ *   Application, section 4.2.5 on the simulation error of Monte Carlo p-values), and the team's
+ *   verdict. A p-value is marked better only when it exceeds every other column's by more than
+ *   2 x the combined Monte Carlo SE, sqrt(se_a^2 + se_b^2).
+ * - per model how many statistics fail at 0.05 and the summed Mahalanobis distance (with the
+ *   caution that p-values of different statistics come from the same chains and are not independent).
+ * Items are batches (a fit's simulated check) or fits (estimates only).
  */
 import type { DataSource } from 'typeorm';
 import type { FitResults } from '../../shared/models';
 import { parameterLabel } from '../../shared/models';
 import {
-  bestIndex,
+  BETTER_MC_SE_FACTOR,
+  betterPValue,
   countVerdicts,
+  FAIL_LEVEL,
+  monteCarloSe,
+  significanceOf,
   MAX_COMPARE,
   MIN_COMPARE,
   type CompareColumn,
   type CompareEstimateCell,
   type CompareEstimateRow,
+  type CompareOverall,
+  type ComparePCell,
   type ComparePRow,
   type CompareResponse,
   type VerdictCounts,
@@ -43,7 +58,7 @@ export function fitInfo(dataSource: DataSource, studyId: number, fitId: number):
 
 interface Item {
   column: CompareColumn;
-  params: Map<string, CompareEstimateCell & { label: string; kind: 'rate' | 'objective' }>;
+  params: Map<string, Pick<CompareEstimateCell, 'value' | 'se' | 'convergenceT'> & { label: string; kind: 'rate' | 'objective' }>;
   batch: LoadedBatch | null;
 }
 
@@ -136,21 +151,15 @@ export function compareItems(
   const rateKeys = keys.filter((k) => k.startsWith('rate:')).sort((a, b) => Number(a.slice(5)) - Number(b.slice(5)));
   const ordered = [...rateKeys, ...keys.filter((k) => !k.startsWith('rate:'))];
   const estimates: CompareEstimateRow[] = ordered.map((key) => {
-    const cells = items.map((it) => {
+    const cells = items.map((it): CompareEstimateCell | null => {
       const p = it.params.get(key);
-      return p ? { value: p.value, se: p.se, convergenceT: p.convergenceT } : null;
+      if (!p) return null;
+      // Rates are positive by construction: a test against 0 says nothing, so they get no t.
+      const t = p.kind === 'objective' && p.se !== null && p.se > 0 ? p.value / p.se : null;
+      return { value: p.value, se: p.se, convergenceT: p.convergenceT, t, significance: significanceOf(t) };
     });
     const info = items.map((it) => it.params.get(key)).find((p) => p !== undefined)!;
-    return {
-      key,
-      label: info.label,
-      kind: info.kind,
-      cells,
-      better: bestIndex(
-        cells.map((c) => (c?.convergenceT == null ? null : Math.abs(c.convergenceT))),
-        'lower',
-      ),
-    };
+    return { key, label: info.label, kind: info.kind, cells };
   });
 
   // p-values per statistic and period, over the union of the batches' cards.
@@ -164,20 +173,21 @@ export function compareItems(
   }
   rowKeys.sort((a, b) => a.period - b.period);
   const pValues: ComparePRow[] = rowKeys.map((k) => {
-    const cells = gofs.map((g, i) => {
+    const cells = gofs.map((g, i): ComparePCell | null => {
       const r = g?.find((x) => x.statistic === k.statistic && x.period === k.period);
       if (!r) return null;
-      return { pValue: r.pValue, verdict: verdictMaps[i]?.get(`${k.statistic}@${k.period}`)?.verdict ?? null };
+      return { pValue: r.pValue, mcSe: monteCarloSe(r.pValue, r.chains), distance: r.distance, verdict: verdictMaps[i]?.get(`${k.statistic}@${k.period}`)?.verdict ?? null };
     });
+    return { statistic: k.statistic as ComparePRow['statistic'], label: k.label, period: k.period, cells, ...betterPValue(cells) };
+  });
+  const overall: (CompareOverall | null)[] = items.map((it, i) => {
+    if (!it.batch) return null;
+    const mine = pValues.map((r) => r.cells[i]).filter((c): c is ComparePCell => c !== null);
+    const distances = mine.map((c) => c.distance).filter(Number.isFinite);
     return {
-      statistic: k.statistic as ComparePRow['statistic'],
-      label: k.label,
-      period: k.period,
-      cells,
-      better: bestIndex(
-        cells.map((c) => c?.pValue ?? null),
-        'higher',
-      ),
+      failing: mine.filter((c) => c.pValue < FAIL_LEVEL).length,
+      tested: mine.length,
+      distanceSum: distances.length === mine.length && mine.length > 0 ? distances.reduce((a, b) => a + b, 0) : null,
     };
   });
 
@@ -190,5 +200,9 @@ export function compareItems(
   if (new Set(chains).size > 1) notes.push('The batches ran different numbers of chains, so their p-values have different resolutions (the smallest possible is 1/(chains + 1)).');
   const periodsDiffer = new Set(items.filter((it) => it.batch).map((it) => it.batch!.summary.periods.join(','))).size > 1;
   if (periodsDiffer) notes.push('The batches cover different periods; a dash marks a period a batch did not simulate.');
-  return { studyId, columns: items.map((it) => it.column), estimates, pValues, verdicts, notes };
+  if (periodsDiffer || new Set(pValues.map((r) => r.cells.filter((c) => c !== null).length)).size > 1) {
+    notes.push('The models were not checked on the same statistics and periods, so their failure counts and summed distances are not directly comparable.');
+  }
+  const betterRule = `A p-value is marked better only when it exceeds each other model's by more than ${BETTER_MC_SE_FACTOR} combined Monte Carlo standard errors, ${BETTER_MC_SE_FACTOR} × sqrt(se1² + se2²), with se = sqrt(p(1 - p) / N) for N chains (p kept within 1/(N + 1) of 0 and 1).`;
+  return { studyId, columns: items.map((it) => it.column), estimates, pValues, verdicts, overall, betterRule, notes };
 }

@@ -195,6 +195,8 @@ export interface ReportSignoffRow {
   /** VerdictCounts JSON at signing. */
   counts: string;
   signedAt: Date;
+  /** SignoffAcknowledgement JSON when signed off despite concerns; null otherwise. */
+  acknowledgement: string | null;
 }
 
 export const ReportSignoffEntity = new EntitySchema<ReportSignoffRow & { study?: unknown; batch?: unknown; signedBy?: unknown }>({
@@ -209,6 +211,7 @@ export const ReportSignoffEntity = new EntitySchema<ReportSignoffRow & { study?:
     note: { type: 'text', default: '' },
     counts: { type: 'text' },
     signedAt: { type: 'datetime', createDate: true },
+    acknowledgement: { type: 'text', nullable: true },
   },
   relations: {
     study: studyFk('report_signoffs'),

@@ -309,7 +309,7 @@ describe('bad batch requests store nothing', () => {
     expect(await t.counts(...tables)).toEqual(before);
   });
 
-  it('a study with batches refuses new data (409), so stored results keep matching their waves', async () => {
+  it('a study with batches refuses new data without confirmation (409) and names the batch, so stored results are not silently orphaned', async () => {
     const created = await request(t.app).post('/api/studies').set(bearer(outsider)).send({ name: 'Third station', description: '' });
     expect(created.status).toBe(201);
     const third = created.body.study.id as number;
@@ -322,7 +322,9 @@ describe('bad batch requests store nothing', () => {
     expect(batch.status).toBe(201);
     const again = await request(t.app).post(`/api/studies/${third}/data`).set(bearer(outsider)).send(upload);
     expect(again.status).toBe(409);
-    expect(again.body.error.message).toMatch(/simulation batches/);
+    expect(again.body.error.code).toBe('data_in_use');
+    // while the batch runs the refusal says to wait; once it is done it says the batch becomes stale
+    expect(again.body.error.message).toMatch(/1 batch was built on the data stored now|batch is still queued or running/);
   });
 
   it('a batch of another study is not found through this study', async () => {

@@ -86,16 +86,17 @@ describe('unexpected failures', () => {
     await broken.close();
   });
 
-  it('health answers with the version', async () => {
+  it('health answers with the version and whether the dev outbox is mounted', async () => {
     const res = await request(t.app).get('/api/health');
-    expect(res.body).toEqual({ ok: true, version: t.config.version });
+    expect(res.body).toEqual({ ok: true, version: t.config.version, devOutbox: true });
   });
 
-  it('the dev outbox is readable in development and absent in production', async () => {
+  it('the dev outbox is readable in development and absent in production, and health says so', async () => {
     await request(t.app).get('/api/dev/outbox').expect(200);
     const prod = await makeTestApp({ config: { isProduction: true, nodeEnv: 'production' } });
     const res = await request(prod.app).get('/api/dev/outbox');
     expect(res.status).toBe(404);
+    expect((await request(prod.app).get('/api/health')).body.devOutbox).toBe(false);
     await prod.close();
   });
 });

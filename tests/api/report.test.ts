@@ -5,6 +5,10 @@
  * writer: every statistic's section must carry its p-value (as the batches module's /gof endpoint
  * gives it, to three decimals, common practice) and its verdict, the signer and the seed; its fonts
  * must be embedded. The CSV is parsed with Python's csv module (RFC 4180) and compared with /gof.
+ * The sign-off guard: a batch with fewer chains than FEW_CHAINS (or of a fit that did not converge)
+ * is signed off only with an acknowledged reason (400 acknowledgement_required without one, nothing
+ * stored), and the reason is printed in the PDF and carried in the CSV and JSON; a batch without
+ * concerns signs off with no reason.
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -32,8 +36,8 @@ let dir: string;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const B = (id: number) => `/api/studies/${studyId}/batches/${id}`;
 
-async function makeBatch(model: unknown, seed: number): Promise<number> {
-  const res = await request(t.app).post(`/api/studies/${studyId}/batches`).set(bearer(stats)).send({ model, chains: 100, seed });
+async function makeBatch(model: unknown, seed: number, chains = 100): Promise<number> {
+  const res = await request(t.app).post(`/api/studies/${studyId}/batches`).set(bearer(stats)).send({ model, chains, seed });
   expect(res.status).toBe(201);
   const id = res.body.batch.id as number;
   for (let i = 0; i < 600; i++) {
@@ -105,9 +109,33 @@ describe('sign-off', () => {
     await request(t.app).patch('/api/me/notifications').set(bearer(reviewer)).send({ reportSigned: false });
     t.mailer.clear();
     const before = Date.now();
-    const res = await request(t.app).post(`${B(batchId)}/report/signoff`).set(bearer(lead)).send({ note: 'Good enough for the station report.' });
+    // 100 chains are fewer than the few-chains caution (500): the report lists the concern.
+    const pending = (await request(t.app).get(`${B(batchId)}/report`).set(bearer(lead))).body as ReportStatus;
+    expect(pending.concerns.map((c) => c.code)).toEqual(['few_chains']);
+    expect(pending.concerns[0].message).toMatch(/100 chains, fewer than 500/);
+    // Without an acknowledgement, or with a reason too short, nothing is stored.
+    const refused = await request(t.app).post(`${B(batchId)}/report/signoff`).set(bearer(lead)).send({ note: 'Good enough for the station report.' });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.code).toBe('acknowledgement_required');
+    expect(refused.body.error.message).toMatch(/acknowledgement with a reason.*100 chains/);
+    expect(refused.body.error.details.concerns).toEqual(pending.concerns);
+    const short = await request(t.app).post(`${B(batchId)}/report/signoff`).set(bearer(lead)).send({ note: 'x', acknowledgement: { reason: 'ok' } });
+    expect(short.status).toBe(400);
+    expect(short.body.error.message).toMatch(/at least 10 characters/);
+    const blank = await request(t.app).post(`${B(batchId)}/report/signoff`).set(bearer(lead)).send({ acknowledgement: { reason: '           ' } });
+    expect(blank.status).toBe(400);
+    expect(await t.counts('report_signoffs')).toEqual({ report_signoffs: 0 });
+    expect(t.mailer.messages()).toEqual([]);
+
+    const reason = 'A pilot check for the crew meeting; the 1000-chain run follows next week.';
+    const res = await request(t.app).post(`${B(batchId)}/report/signoff`).set(bearer(lead)).send({ note: 'Good enough for the station report.', acknowledgement: { reason } });
     expect(res.status).toBe(201);
-    expect(res.body.signoff).toMatchObject({ signedBy: { name: 'Ines Varga' }, note: 'Good enough for the station report.', counts: { pass: 1, fail: 1, unsure: 0, awaiting: 8, total: 10 } });
+    expect(res.body.signoff).toMatchObject({
+      signedBy: { name: 'Ines Varga' },
+      note: 'Good enough for the station report.',
+      counts: { pass: 1, fail: 1, unsure: 0, awaiting: 8, total: 10 },
+      acknowledgement: { concerns: pending.concerns, reason },
+    });
     const at = Date.parse(res.body.signoff.signedAt);
     expect(at).toBeGreaterThanOrEqual(before - 1000);
     expect(at).toBeLessThanOrEqual(Date.now() + 1000);
@@ -117,6 +145,41 @@ describe('sign-off', () => {
     expect(status.canSign).toBe(true);
     expect(status.signoffs).toHaveLength(1);
     expect(status.changedSinceSignoff).toBe(false);
+    expect(status.signoffs[0].acknowledgement?.reason).toBe(reason);
+  });
+
+  it('a batch without concerns (enough chains, no failed convergence check) signs off as before, with no reason', async () => {
+    const enough = await makeBatch({ rates: [2.5, 2.5], effects: [{ id: 'density', value: -1.8 }] }, 33, 500);
+    const status = (await request(t.app).get(`${B(enough)}/report`).set(bearer(lead))).body as ReportStatus;
+    expect(status.concerns).toEqual([]);
+    const res = await request(t.app).post(`${B(enough)}/report/signoff`).set(bearer(lead)).send({ note: 'Fine.' });
+    expect(res.status).toBe(201);
+    expect(res.body.signoff.acknowledgement).toBeNull();
+  });
+
+  it('a fit that did not converge is a concern too', async () => {
+    // A hand-entered fit of the demo model, then its stored results marked as a failed convergence check.
+    const model = await request(t.app)
+      .post(`/api/studies/${studyId}/models`)
+      .set(bearer(stats))
+      .send({ name: 'Density only', rates: [1, 2].map((period) => ({ period, estimate: false, value: 2.5 })), effects: [{ id: 'density', value: -1.8, estimate: false }] });
+    expect(model.status).toBe(201);
+    const fit = await request(t.app).post(`/api/studies/${studyId}/models/${model.body.model.id}/fits`).set(bearer(stats)).send({ mode: 'fixed' });
+    expect(fit.status).toBe(201);
+    const fitId = fit.body.fit.id as number;
+    const stored = (await t.dataSource.query(`SELECT "results" FROM "fits" WHERE "id" = ?`, [fitId])) as { results: string }[];
+    await t.dataSource.query(`UPDATE "fits" SET "results" = ? WHERE "id" = ?`, [JSON.stringify({ ...JSON.parse(stored[0].results), maxAbsT: 0.31, tauMax: 0.42, converged: false }), fitId]);
+    const res = await request(t.app).post(`/api/studies/${studyId}/batches`).set(bearer(stats)).send({ fitId, chains: 500, seed: 34 });
+    expect(res.status).toBe(201);
+    const id = res.body.batch.id as number;
+    for (let i = 0; i < 600; i++) {
+      if (((await request(t.app).get(B(id)).set(bearer(stats))).body.batch as BatchDetail).state === 'done') break;
+      await sleep(100);
+    }
+    const status = (await request(t.app).get(`${B(id)}/report`).set(bearer(lead))).body as ReportStatus;
+    expect(status.concerns.map((c) => c.code)).toEqual(['not_converged']);
+    expect(status.concerns[0].message).toMatch(/did not converge \(largest \|t\| 0\.310, overall ratio 0\.420\)/);
+    expect((await request(t.app).post(`${B(id)}/report/signoff`).set(bearer(lead)).send({})).body.error.code).toBe('acknowledgement_required');
   });
 });
 
@@ -151,7 +214,22 @@ describe('exports', () => {
     expect(pdfText).toContain('Add transitive triplets next.');
     expect(pdfText).toMatch(/Signed off by Ines Varga on \d{1,2} \w+ \d{4}, \d{2}:\d{2} UTC/);
     expect(pdfText).toContain('Good enough for the station report.');
+    // The acknowledged concern and the reason, as pdftotext reads them (lines joined).
+    const flat = pdfText.replace(/\s+/g, ' ');
+    expect(flat).toContain('Signed off despite these concerns:');
+    expect(flat).toContain('The batch ran 100 chains, fewer than 500');
+    expect(flat).toContain('Reason given: “A pilot check for the crew meeting; the 1000-chain run follows next week.”');
+    expect(report.signoffs[0].acknowledgement?.reason).toBe('A pilot check for the crew meeting; the 1000-chain run follows next week.');
     expect(pdfText).toContain('Comparison of models');
+    // The comparison's honest marks: convergence per model, p ± Monte Carlo SE, the overall lines and the caution.
+    const cmpText = flat.slice(flat.indexOf('Comparison of models'));
+    expect(cmpText).toContain('Fit converged');
+    expect(cmpText).toMatch(/p = \S+ ± \d\.\d{3}/);
+    expect(cmpText).toContain('Failing at 0.05');
+    expect(cmpText).toContain('Summed distance');
+    expect(cmpText).toContain('not independent');
+    expect(cmpText).toContain('2 combined Monte Carlo standard errors');
+    if (process.env.WAVEFIT_KEEP_PDF) writeFileSync(process.env.WAVEFIT_KEEP_PDF, res.body as Buffer);
     expect(pdfText).toContain('Batch seed');
     expect(pdfText).toContain('31');
     expect(pdfText).toContain(process.version);
@@ -197,6 +275,9 @@ describe('exports', () => {
       expect(Number(r.p_value)).toBe(gof.test.pValue);
       expect(r.verdict).toBe('fail');
       expect(r.verdict_note).toBe('Far too few transitive triads.');
+      expect(r.signed_off_by).toBe('Ines Varga');
+      expect(r.signoff_reason).toBe('A pilot check for the crew meeting; the 1000-chain run follows next week.');
+      expect(r.signoff_concerns).toMatch(/100 chains, fewer than 500/);
     });
     const est = await request(t.app).get(`${B(batchId)}/report.csv?table=estimates`).set(bearer(reviewer));
     expect(est.text.split('\r\n')[0]).toBe('batch,fit,parameter,label,value,standard_error,convergence_t');

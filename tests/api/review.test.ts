@@ -8,8 +8,13 @@
  *
  * Outside references: the p-values the board and the comparison show must equal the batches
  * module's own /gof endpoint (checked there against numpy); the roles are those of shared/api.ts
- * ROLE_ABILITIES; "higher p-value is better, lower |t| is better" is common practice.
+ * ROLE_ABILITIES. The comparison's marks: t = estimate / SE against the normal quantiles 1.96 and 2.576
+ * (scipy.stats.norm.ppf, Debian's scipy), the Monte Carlo standard error of a p-value from N chains
+ * sqrt(p(1 - p) / N) (the binomial standard deviation over N, scipy.stats.binom.std; Davison & Hinkley
+ * 1997, Bootstrap Methods and their Application, section 4.2.5), and "better" only beyond twice the
+ * combined Monte Carlo error (our stated rule, common practice for comparing two Monte Carlo estimates).
  */
+import { spawnSync } from 'node:child_process';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROLE_ABILITIES } from '../../shared/api';
@@ -324,25 +329,73 @@ describe('review requests, the inbox and notifications', () => {
 });
 
 describe('comparing two models', () => {
-  it('puts estimates and p-values side by side and marks the higher p-value per statistic', async () => {
+  it('puts estimates with SE and t = estimate/SE, p-values with their Monte Carlo error, and marks "better" only beyond that error', async () => {
+    // Give fit A standard errors and a failed convergence check, as an estimated fit would have
+    // (the fits of this file are entered by hand, which have neither).
+    const stored = (await t.dataSource.query(`SELECT "results" FROM "fits" WHERE "id" = ?`, [fitA])) as { results: string }[];
+    const results = JSON.parse(stored[0].results) as { parameters: { key: string; se: number | null; convergenceT: number | null }[]; maxAbsT: number | null; tauMax: number | null; converged: boolean };
+    const ses: Record<string, number> = { density: 0.5, reciprocity: 0.61 };
+    for (const p of results.parameters) {
+      if (ses[p.key] !== undefined) {
+        p.se = ses[p.key];
+        p.convergenceT = 0.14;
+      }
+    }
+    Object.assign(results, { maxAbsT: 0.14, tauMax: 0.3, converged: false });
+    await t.dataSource.query(`UPDATE "fits" SET "results" = ? WHERE "id" = ?`, [JSON.stringify(results), fitA]);
+
     const res = await request(t.app).get(`/api/studies/${studyId}/compare?batches=${batchA},${batchB}`).set(bearer(reviewer));
     expect(res.status).toBe(200);
     const cmp = res.body as CompareResponse;
-    expect(cmp.columns.map((c) => [c.batchId, c.fitId, c.modelName])).toEqual([
-      [batchA, fitA, 'Structure only'],
-      [batchB, fitB, 'Structure and watch'],
+    expect(cmp.columns.map((c) => [c.batchId, c.fitId, c.modelName, c.converged])).toEqual([
+      [batchA, fitA, 'Structure only', false],
+      [batchB, fitB, 'Structure and watch', null],
     ]);
     const watch = cmp.estimates.find((e) => e.key === 'same_covariate:watch')!;
-    expect(watch.cells).toEqual([null, { value: 0.9, se: null, convergenceT: null }]);
-    expect(cmp.estimates.find((e) => e.key === 'density')!.cells.map((c) => c!.value)).toEqual([-1.9, -2.2]);
+    expect(watch.cells).toEqual([null, { value: 0.9, se: null, convergenceT: null, t: null, significance: null }]);
+    const density = cmp.estimates.find((e) => e.key === 'density')!;
+    expect(density.cells.map((c) => c!.value)).toEqual([-1.9, -2.2]);
+    expect('better' in density).toBe(false);
+    // Normal quantiles from scipy: |t| = 3.8 is significant at 1%; 1.6 / 0.61 = 2.62 at 1% too; a t of 1.9/0.5 = 3.8.
+    const z = JSON.parse(spawnSync('/usr/bin/python3', ['-c', 'import json; from scipy.stats import norm; print(json.dumps([norm.ppf(0.975), norm.ppf(0.995)]))'], { encoding: 'utf8' }).stdout) as [number, number];
+    const word = (tv: number) => (Math.abs(tv) >= z[1] ? 'p1' : Math.abs(tv) >= z[0] ? 'p5' : 'none');
+    expect(density.cells[0]).toMatchObject({ se: 0.5, t: -1.9 / 0.5, significance: word(-1.9 / 0.5) });
+    expect(density.cells[1]).toMatchObject({ se: null, t: null, significance: null });
+    for (const r of cmp.estimates.filter((e) => e.kind === 'rate')) for (const c of r.cells) expect(c?.t ?? null).toBeNull();
+
     expect(cmp.pValues).toHaveLength(10);
+    const gofs: { p: number; n: number; d: number }[][] = [[], []];
     for (const row of cmp.pValues) {
-      const [a, b] = await Promise.all(
-        [batchA, batchB].map(async (id) => ((await request(t.app).get(`${B(id)}/gof?statistic=${row.statistic}&period=${row.period}`).set(bearer(reviewer))).body as GofResponse).test.pValue),
+      const both = await Promise.all(
+        [batchA, batchB].map(async (id) => ((await request(t.app).get(`${B(id)}/gof?statistic=${row.statistic}&period=${row.period}`).set(bearer(reviewer))).body as GofResponse).test),
       );
-      expect(row.cells.map((c) => c!.pValue)).toEqual([a, b]);
-      expect(row.better).toBe(a === b ? null : a > b ? 0 : 1);
+      both.forEach((g, i) => gofs[i].push({ p: g.pValue, n: g.chains, d: g.distance }));
+      expect(row.cells.map((c) => c!.pValue)).toEqual(both.map((g) => g.pValue));
     }
+    // Monte Carlo SE of each p-value: the binomial standard deviation over N (scipy), p kept 1/(N + 1) from the edges.
+    const flat = gofs.flat();
+    const sd = JSON.parse(
+      spawnSync('/usr/bin/python3', ['-c', 'import json,sys; from scipy.stats import binom; print(json.dumps([float(binom.std(n, p)) / n for p, n in json.loads(sys.argv[1])]))', JSON.stringify(flat.map((g) => [Math.min(g.n / (g.n + 1), Math.max(1 / (g.n + 1), g.p)), g.n]))], { encoding: 'utf8' }).stdout,
+    ) as number[];
+    let k = 0;
+    for (let i = 0; i < 2; i++) {
+      cmp.pValues.forEach((row, r) => {
+        expect(row.cells[i]!.mcSe).toBeCloseTo(sd[i * cmp.pValues.length + r], 12);
+        k++;
+      });
+    }
+    expect(k).toBe(20);
+    for (const row of cmp.pValues) {
+      const [a, b] = row.cells.map((c) => c!);
+      const margin = 2 * Math.sqrt(a.mcSe ** 2 + b.mcSe ** 2);
+      const expected = a.pValue - b.pValue > margin ? 0 : b.pValue - a.pValue > margin ? 1 : null;
+      expect(row.better).toBe(expected);
+      expect(row.difference).toBe(expected === null ? 'within' : 'beyond');
+    }
+    expect(cmp.betterRule).toMatch(/2 combined Monte Carlo standard errors/);
+    gofs.forEach((g, i) => {
+      expect(cmp.overall[i]).toEqual({ failing: g.filter((x) => x.p < 0.05).length, tested: 10, distanceSum: expect.closeTo(g.reduce((s, x) => s + x.d, 0), 9) });
+    });
     const board = (await request(t.app).get(`${B(batchB)}/board`).set(bearer(reviewer))).body as BoardResponse;
     expect(cmp.verdicts[1]).toEqual(board.counts);
     expect(cmp.verdicts[0]).toEqual({ pass: 0, fail: 0, unsure: 0, awaiting: 10, total: 10 });

@@ -6,7 +6,8 @@
  *   verdict with a note and a comment, and sees the summary change; a colleague's save in between
  *   shows as a conflict the reviewer can resolve;
  * - on a desktop the lead moves the consensus threshold with the keyboard, compares the two models,
- *   signs off and downloads the PDF report.
+ *   signs off (the demo fits did not converge and ran 100 chains, so the sign-off is refused without
+ *   an acknowledged reason and accepted with one) and downloads the PDF report, whose text carries the reason.
  * Expected values come from the API (read over HTTP with the same account), never from screenshots.
  */
 import { spawnSync } from 'node:child_process';
@@ -176,16 +177,34 @@ describe('the lead on a desktop', () => {
       const cmp = await apiGet<CompareResponse>(page, `/studies/${studyId}/compare?batches=${first},${second}`);
       const rows = table.getByRole('row');
       expect(await rows.count()).toBe(cmp.pValues.length + 1);
-      const betterCount = cmp.pValues.filter((r) => r.better !== null).length + cmp.estimates.filter((r) => r.better !== null).length;
+      // "better" only on p-values, and only where the difference exceeds the Monte Carlo error.
+      const betterCount = cmp.pValues.filter((r) => r.better !== null).length;
       await expect.poll(() => page.getByText('better', { exact: true }).count()).toBe(betterCount);
       await screenshot(page, 'compare', 'desktop');
 
-      // Sign off and download the PDF of the first compared batch, with the comparison.
+      // Sign off and download the PDF of the first compared batch, with the comparison. The demo
+      // batches ran 100 chains (fewer than the few-chains caution), so the sign-off needs a reason.
       await page.getByRole('button', { name: 'Fit report with this comparison' }).click();
       await page.waitForURL(/\/report\?/);
+      // The demo fits did not converge and their batches ran 100 chains: both are listed.
+      await page.getByTestId('signoff-concerns').getByText(/100 chains, fewer than 500/).waitFor();
+      expect(await page.getByTestId('signoff-concerns').innerText()).toMatch(/The fit did not converge/);
+      // The server refuses a sign-off without a reason, whatever the client does.
+      const bare = await page.evaluate(async (path) => {
+        const res = await fetch(path, { method: 'POST', credentials: 'include', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ note: 'no reason' }) });
+        return { status: res.status, code: ((await res.json()) as { error: { code: string } }).error.code };
+      }, `/api/studies/${studyId}/batches/${first}/report/signoff`);
+      expect(bare).toEqual({ status: 400, code: 'acknowledgement_required' });
       await page.getByRole('button', { name: 'Sign off the report' }).click();
       await page.getByRole('button', { name: 'Yes, sign off' }).click();
+      await page.getByText('Tick the acknowledgement first').waitFor();
+      await screenshot(page, 'report-refused', 'desktop');
+      expect((await apiGet<{ signoffs: unknown[] }>(page, `/studies/${studyId}/batches/${first}/report`)).signoffs).toEqual([]);
+      await page.getByRole('checkbox', { name: /I have read the concerns above/ }).click();
+      await page.getByLabel(/Reason for signing off despite the concerns/).fill('Pilot run for the season review; 1000 chains next.');
+      await page.getByRole('button', { name: 'Yes, sign off' }).click();
       await page.getByText(/^Signed off by Ines Varga on/).first().waitFor();
+      await page.getByText('Reason given: “Pilot run for the season review; 1000 chains next.”').waitFor();
       await screenshot(page, 'report', 'desktop');
       const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: /Download the PDF report/ }).click()]);
       const file = join(dir, 'report.pdf');
@@ -193,6 +212,7 @@ describe('the lead on a desktop', () => {
       const text = spawnSync('pdftotext', [file, '-'], { encoding: 'utf8' });
       expect(text.status).toBe(0);
       expect(text.stdout).toMatch(/Signed off by Ines Varga/);
+      expect(text.stdout.replace(/\s+/g, ' ')).toContain('Reason given: “Pilot run for the season review; 1000 chains next.”');
       expect(text.stdout).toContain('Comparison of models');
       // The team was told by e-mail (the fake transport's outbox), the signer was not.
       const signed = server.mailer.messages().filter((m) => m.subject.startsWith('Fit report signed off'));

@@ -36,6 +36,8 @@ describe.each<ViewportName>(['phone', 'desktop'])('the lead at the %s width', (v
       const { page } = b;
       await page.goto(server.baseUrl + '/');
       await page.waitForURL(/\/sign-in/);
+      // Each route's code arrives as its own chunk (async routes), so wait for the page to render.
+      await page.getByRole('heading', { name: 'Sign in' }).waitFor();
       await expect(page.getByRole('heading', { name: 'Sign in' }).isVisible()).resolves.toBe(true);
       await screenshot(page, 'sign-in', viewport);
 

@@ -40,10 +40,10 @@ export interface WavefitServer {
 }
 
 /** Fails with a clear message when the exported app or the browser is missing. */
-export function assertPrerequisites(): void {
-  if (!existsSync(join(DIST, 'index.html'))) {
+export function assertPrerequisites(dist: string = DIST): void {
+  if (!existsSync(join(dist, 'index.html'))) {
     throw new Error(
-      `browser tests: the exported web app is missing (${join(DIST, 'index.html')}). ` +
+      `browser tests: the exported web app is missing (${join(dist, 'index.html')}). ` +
         'Build it first with "npx expo export --platform web --output-dir dist" (npm test does this).',
     );
   }
@@ -52,8 +52,9 @@ export function assertPrerequisites(): void {
   }
 }
 
-export async function startServer(): Promise<WavefitServer> {
-  assertPrerequisites();
+/** distDir: the exported web app to serve (dist/ by default; the web benchmark may point elsewhere). */
+export async function startServer(distDir: string = DIST): Promise<WavefitServer> {
+  assertPrerequisites(distDir);
   const dir = mkdtempSync(join(tmpdir(), 'wavefit-browser-'));
   const dbPath = join(dir, 'wavefit.sqlite');
   const http: Server = createServer();
@@ -63,12 +64,12 @@ export async function startServer(): Promise<WavefitServer> {
   });
   const { port } = http.address() as AddressInfo;
   const baseUrl = `http://127.0.0.1:${port}`;
-  const config = testConfig({ dbPath, publicUrl: baseUrl, distDir: DIST });
+  const config = testConfig({ dbPath, publicUrl: baseUrl, distDir });
   const dataSource = await openDataSource({ database: dbPath });
   const seed = await seedDemo(dataSource, { passwordHash: config.passwordHash });
   const mailer = createOutboxMailer({ from: config.mailFrom });
   const app = createApp({ dataSource, mailer, config }, { logError: (e) => console.error('[browser-test server]', e) });
-  serveWebApp(app, DIST);
+  serveWebApp(app, distDir);
   http.on('request', app);
   return {
     baseUrl,
@@ -96,7 +97,7 @@ export interface BrowserSession {
 
 /** A fresh chromium profile at the given viewport. */
 export async function openBrowser(viewport: ViewportName): Promise<BrowserSession> {
-  assertPrerequisites();
+  if (!existsSync(CHROMIUM)) throw new Error(`browser tests: Debian's chromium is missing at ${CHROMIUM} (apt-get install chromium).`);
   const profile = mkdtempSync(join(tmpdir(), 'wavefit-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,

@@ -7,7 +7,8 @@
 import { describe, expect, it } from 'vitest';
 import { dataUploadBodySchema, type DataProblem, type DataUploadBody } from '../../shared/data';
 import { readCsv, splitCsvLine } from '../../server/data/csv';
-import { TIE_MISSING, formatMatrixCsv, parseUpload, type ParsedStudyData } from '../../server/data/parse';
+import { formatMatrixCsv } from '../../server/data/download';
+import { TIE_MISSING, parseUpload, type ParsedStudyData } from '../../server/data/parse';
 
 const parse = (body: DataUploadBody) => parseUpload(dataUploadBodySchema.parse(body));
 

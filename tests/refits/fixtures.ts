@@ -56,6 +56,8 @@ export function knownContext(n: number, periods: number, models: KnownModel[], s
       start: Uint8Array.from(first.adj),
       end: Uint8Array.from(first.adj),
       endMissing: null,
+      free: null,
+      active: null,
       covariates: {},
       centring: {},
     })),

@@ -1,0 +1,3 @@
+import { WavesScreen } from '../../../../../features/data/WavesScreen';
+
+export default WavesScreen;

@@ -1,0 +1,3 @@
+import { UploadScreen } from '../../../../../features/data/UploadScreen';
+
+export default UploadScreen;
