@@ -59,7 +59,17 @@ describe('re-fit studies in the browser', () => {
       // Watching: the progress bar moves while it runs.
       await page.getByTestId('refit-progress').waitFor({ timeout: 30_000 });
       await page.getByText(/re-fits \(\d+%\)/).first().waitFor();
-      await screenshot(page, 'refit-progress', 'desktop');
+      // It moves: wait until the bar shows at least two stored re-fits, while the study still runs.
+      const bar = page.getByTestId('refit-progress').locator('[role="progressbar"]');
+      for (let t = 0; t < 600; t++) {
+        const now = Number(await bar.getAttribute('aria-valuenow').catch(() => '0'));
+        if (now >= 2) break;
+        await page.waitForTimeout(250);
+      }
+      if (await page.getByTestId('refit-progress').count()) {
+        expect(Number(await bar.getAttribute('aria-valuenow'))).toBeGreaterThanOrEqual(2);
+        await screenshot(page, 'refit-progress', 'desktop');
+      }
       await page.getByTestId('refit-panels').waitFor({ timeout: 400_000 });
       expect(await storedRefits(refitId)).toBe(40);
 

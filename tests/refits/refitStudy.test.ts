@@ -33,7 +33,7 @@ function run(context: ReturnType<typeof knownContext>, pairs: [number, number][]
 
 describe('re-fit study on a model with known parameters', () => {
   it('95% intervals cover the generating values at the nominal rate, within Monte Carlo error', () => {
-    const R = 48;
+    const R = 40;
     const context = knownContext(25, 2, [{ name: 'Known', rates: [4, 4], effects: [{ id: 'density', value: -1.8 }, { id: 'reciprocity', value: 1.2 }] }], 21);
     const rows = run(context, [[0, 0]], R);
     // Coverage over every re-fit that finished (converged or not): the strict convergence rule is
