@@ -74,7 +74,9 @@ function PairCard({ groups, titles }: { groups: RefitGroup[]; titles: string[] }
   const [g, setG] = useState('0');
   const group = groups[Number(g)] ?? groups[0];
   const pairs = group.correlations;
-  const [pair, setPair] = useState('0');
+  // Start with the first pair of two effects (rates rarely tell much together).
+  const firstEffects = (gr: RefitGroup) => String(Math.max(0, gr.correlations.findIndex((c) => !c.a.startsWith('rate:') && !c.b.startsWith('rate:'))));
+  const [pair, setPair] = useState(() => firstEffects(group));
   const chosen = pairs[Number(pair)] ?? pairs[0];
   if (!chosen) return <Text variant="muted">A pair needs at least two estimated parameters.</Text>;
   const a = group.parameters.find((q) => q.key === chosen.a)!;
@@ -88,7 +90,7 @@ function PairCard({ groups, titles }: { groups: RefitGroup[]; titles: string[] }
           value={g}
           onChange={(v) => {
             setG(v);
-            setPair('0');
+            setPair(firstEffects(groups[Number(v)] ?? groups[0]));
           }}
         />
       ) : null}
