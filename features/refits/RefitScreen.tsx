@@ -237,7 +237,6 @@ export function RefitScreen() {
                 <View key={`${g.source}-${g.target}`} style={{ gap: space.s1 }}>
                   <Text variant="label">{g.title}</Text>
                   <CorrelationGrid labels={g.parameters.map((q) => q.label)} matrix={correlationMatrix(g)} />
-                  <Text variant="caption">{g.parameters.map((q, k) => `${k + 1} ${q.label}`).join(' · ')}</Text>
                 </View>
               ))}
             </Card>
