@@ -19,6 +19,7 @@ import type { AppDeps } from './deps';
 import { devRouter } from './dev/routes';
 import { healthRouter } from './health/routes';
 import { invitationsRouter } from './invitations/routes';
+import { lineupsRouter } from './lineups/routes';
 import { studiesRouter } from './studies/routes';
 import { teamRouter } from './team/routes';
 
@@ -66,6 +67,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', refitsRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
+  api.use(lineupsRouter(routeDeps));
   api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
   if (!config.isProduction) api.use('/dev', devRouter(routeDeps));

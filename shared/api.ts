@@ -83,6 +83,7 @@ export type ApiErrorCode =
   | 'batch_not_ready'
   | 'fit_not_running'
   | 'verdict_conflict'
+  | 'already_picked'
   | 'acknowledgement_required'
   | 'fit_not_ready'
   | 'refit_not_ready'

@@ -38,6 +38,7 @@
  * or statistic that is not in this study.
  */
 import { z } from 'zod';
+import type { LineupResult } from './lineups';
 import type { RefitResults } from './refits';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
 
@@ -445,6 +446,8 @@ export interface ReportStatisticJson {
   caution: string | null;
   verdict: VerdictDto | null;
   comments: CommentDto[];
+  /** Lineup tests of this card (no answers: only how many found the observed wave). */
+  lineups: { id: number; panels: number; seed: number; createdBy: string | null; result: LineupResult }[];
 }
 
 export interface ReportJson {

@@ -196,7 +196,7 @@ export function BoardScreen() {
             <View style={{ flexDirection: breakpoint === 'wide' ? 'row' : 'column', flexWrap: 'wrap', gap: space.s2 }}>
               {cards.map((card) => (
                 <View key={`${card.statistic}-${card.period}`} style={breakpoint === 'wide' ? { flexBasis: '48%', flexGrow: 1, minWidth: 0 } : undefined}>
-                  <StatisticCard studyId={studyId} batchId={batchId} card={card} canReview={canReview} waves={waves} />
+                  <StatisticCard studyId={studyId} batchId={batchId} card={card} canReview={canReview} isLead={isLead} waves={waves} />
                 </View>
               ))}
             </View>

@@ -15,6 +15,7 @@ import { Loading, LoadError } from '../ui/Loading';
 import { Text } from '../ui/Text';
 import { colors } from '../ui/theme';
 import { space } from '../ui/tokens';
+import { CardLineups } from '../lineups/CardLineups';
 import { CommentThread, VerdictHistory } from './CardThread';
 import { EnvelopeChart, EnvelopeLegend } from './EnvelopeChart';
 import { useBoardMutations, useChart } from './queries';
@@ -27,7 +28,7 @@ export function periodName(period: number, waves?: string[]): string {
   return from && to ? `period ${period} (${from} to ${to})` : `period ${period}`;
 }
 
-export function StatisticCard({ studyId, batchId, card, canReview, waves }: { studyId: number; batchId: number; card: BoardCard; canReview: boolean; waves?: string[] }) {
+export function StatisticCard({ studyId, batchId, card, canReview, isLead = false, waves }: { studyId: number; batchId: number; card: BoardCard; canReview: boolean; isLead?: boolean; waves?: string[] }) {
   const chart = useChart(studyId, batchId, card.statistic, card.period);
   const mutations = useBoardMutations(studyId, batchId);
   const [open, setOpen] = useState<'none' | 'comments' | 'history'>('none');
@@ -79,6 +80,7 @@ export function StatisticCard({ studyId, batchId, card, canReview, waves }: { st
         canReview={canReview}
         save={(verdict: Verdict, note: string, version: number) => mutations.saveVerdict({ statistic: card.statistic, period: card.period }, verdict, note, version)}
       />
+      <CardLineups studyId={studyId} batchId={batchId} statistic={card.statistic} period={card.period} canReview={canReview} isLead={isLead} cardName={cardName} />
       <ButtonRow>
         <Button
           label={`Comments (${card.comments})`}

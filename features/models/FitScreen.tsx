@@ -20,6 +20,7 @@ import { TextLink } from '../ui/TextLink';
 import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 import { CorrelationGrid } from './CorrelationGrid';
+import { ScoreTestsSection } from './ScoreTestsSection';
 import { convergenceWord, duration, fitStateWords, fixed, progressWords, tauHigh, tHigh } from './format';
 import { parseId } from '../api/params';
 import { useFit, useModel, useModelMutations } from './queries';
@@ -248,6 +249,7 @@ export function FitScreen() {
                   </Card>
                 </Section>
               ) : null}
+              {fit.state === 'done' ? <ScoreTestsSection studyId={studyId} modelId={modelId} fitId={fitId} mayEdit={can(study.data?.study.myRole, 'editModels')} /> : null}
             </>
           ) : null}
 

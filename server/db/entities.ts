@@ -7,6 +7,7 @@ import { UserEntity } from '../auth/entities';
 import { BatchEntity, BatchResultEntity, BatchTieCountsEntity } from '../batches/entities';
 import { ActorEntity, CovariateEntity, WaveEntity } from '../data/entities';
 import { InvitationEntity } from '../invitations/entities';
+import { lineupEntities } from '../lineups/entities';
 import { JobChunkEntity, JobEntity } from '../jobs/entities';
 import { FitEntity, ModelSpecEntity } from '../models/entities';
 import { RefitEntity, RefitResultEntity } from '../refits/entities';
@@ -30,6 +31,7 @@ export const entities = [
   ModelSpecEntity,
   FitEntity,
   ...reviewEntities,
+  ...lineupEntities,
   RefitEntity,
   RefitResultEntity,
 ];

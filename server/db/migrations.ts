@@ -19,7 +19,8 @@ import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
 import { FixedPairsAndPresence1733100001300 } from '../data/migrations/0003-FixedPairsAndPresence';
 import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
-import { Refits1733100002000 } from '../refits/migration';
+import { Lineups1733100002000 } from '../lineups/migration';
+import { Refits1733100002100 } from '../refits/migration';
 
 export const migrations = [
   Accounts1733100000001,
@@ -30,5 +31,6 @@ export const migrations = [
   Review1733100001200,
   FixedPairsAndPresence1733100001300,
   SignoffAcknowledgement1733100001900,
-  Refits1733100002000,
+  Lineups1733100002000,
+  Refits1733100002100,
 ];

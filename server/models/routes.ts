@@ -3,6 +3,7 @@
  * their fits (start and cancel: lead, statistician; read: members). The contract is in shared/models.ts.
  */
 import { Router, type Request } from 'express';
+import { SCORE_TEST_RUNS, scoreTestsOf } from './scoreTests';
 import type { ApiErrorCode } from '../../shared/api';
 import {
   modelSpecBodySchema,
@@ -12,7 +13,7 @@ import {
   type ParsedStartFitBody,
 } from '../../shared/models';
 import { currentStudy, currentUser } from '../auth/context';
-import { idParam, notFound, validate } from '../errors';
+import { badRequest, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
 import { cancelFit, fitDetail, getFitRow, listFits, startFit } from './fits';
@@ -117,6 +118,14 @@ export function modelsRouter(deps: RouteDeps): Router {
   router.get('/:studyId/models/:modelId/fits/:fitId', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
     const { row } = loadFit(req);
     res.json({ fit: fitDetail(dataSource, row) });
+  });
+
+  router.get('/:studyId/models/:modelId/fits/:fitId/score-tests', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
+    const { model, row } = loadFit(req);
+    const raw = req.query.runs;
+    const runs = raw === undefined || raw === '' ? SCORE_TEST_RUNS : Number(raw);
+    if (!Number.isInteger(runs) || runs < 20 || runs > 500) throw badRequest('The number of simulations (runs) is a whole number from 20 to 500.');
+    res.json(await scoreTestsOf(dataSource, model, row, runs));
   });
 
   router.post(

@@ -13,9 +13,9 @@ import type { Config } from '../config';
 import { parseSqlDate, sqlNow, syncDb, type SyncDb } from '../db/sync';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { wanting, type PreferenceKey } from './preferences';
-import { batchFailedMail, batchFinishedMail, reportSignedMail, reviewRequestedMail } from './templates';
+import { batchFailedMail, batchFinishedMail, lineupInvitedMail, reportSignedMail, reviewRequestedMail } from './templates';
 
-export const NOTIFICATION_KINDS = ['batch_finished', 'batch_failed', 'review_requested', 'report_signed'] as const;
+export const NOTIFICATION_KINDS = ['batch_finished', 'batch_failed', 'review_requested', 'report_signed', 'lineup_invited'] as const;
 export type NotificationKind = (typeof NOTIFICATION_KINDS)[number];
 
 /** An event is tried this many times before it is left with its error. */
@@ -25,6 +25,14 @@ export interface ReviewRequestedPayload {
   reviewerIds: number[];
   requestedById: number;
   requestedBy: string;
+  message: string;
+}
+export interface LineupInvitedPayload {
+  lineupId: number;
+  reviewerIds: number[];
+  invitedBy: string;
+  statisticLabel: string;
+  panels: number;
   message: string;
 }
 export interface ReportSignedPayload {
@@ -146,6 +154,21 @@ export function createNotifier(deps: { dataSource: DataSource; mailer: Mailer; c
         const p = payload as ReviewRequestedPayload;
         return filterBy(db, usersByIds(db, p.reviewerIds), 'reviewRequested').map((r) =>
           reviewRequestedMail({ to: r.email, studyName: study.name, batchLabel: batch!.label, requestedBy: p.requestedBy, message: p.message, link: boardLink }),
+        );
+      }
+      case 'lineup_invited': {
+        const p = payload as LineupInvitedPayload;
+        return filterBy(db, usersByIds(db, p.reviewerIds), 'reviewRequested').map((r) =>
+          lineupInvitedMail({
+            to: r.email,
+            studyName: study.name,
+            batchLabel: batch!.label,
+            invitedBy: p.invitedBy,
+            statisticLabel: p.statisticLabel,
+            panels: p.panels,
+            message: p.message,
+            link: `${base}/studies/${event.studyId}/board/${event.batchId}/lineups/${p.lineupId}`,
+          }),
         );
       }
       case 'report_signed': {

@@ -78,3 +78,22 @@ export function reportSignedMail(input: {
     { href: input.link, words: 'Open the report' },
   );
 }
+
+export function lineupInvitedMail(input: {
+  to: string;
+  studyName: string;
+  batchLabel: string;
+  invitedBy: string;
+  statisticLabel: string;
+  panels: number;
+  message: string;
+  link: string;
+}): MailMessage {
+  const paragraphs = [
+    `${input.invitedBy} invites you to a lineup test in the study "${input.studyName}" (batch "${input.batchLabel}").`,
+    `You will see ${input.panels} small charts of the ${input.statisticLabel.toLowerCase()}, drawn alike. One is the observed wave, the others come from the model. Pick the one that looks different and say why in a few words.`,
+    'Please take it before you look at this statistic on the review board, and without asking anyone which panel they chose.',
+  ];
+  if (input.message) paragraphs.push(`Message from ${input.invitedBy}: ${input.message}`);
+  return message(input.to, `Lineup test: ${input.statisticLabel} (${input.studyName})`, paragraphs, { href: input.link, words: 'Take the lineup' });
+}

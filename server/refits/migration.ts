@@ -1,11 +1,11 @@
 /**
  * Migration: re-fit studies (refits, refit_results). Listed in server/db/migrations.ts, after the
- * sign-off acknowledgement.
+ * lineups.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 
-export class Refits1733100002000 implements MigrationInterface {
-  name = 'Refits1733100002000';
+export class Refits1733100002100 implements MigrationInterface {
+  name = 'Refits1733100002100';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(

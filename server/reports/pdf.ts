@@ -56,6 +56,10 @@ function statisticBlock(w: Writer, report: ReportJson, s: ReportStatisticJson): 
       w.text(`${c.author?.name ?? 'A former member'}, ${dateTime(c.createdAt)}: ${c.body}`, { size: 8.5, indent: 28, gap: 2 });
     }
   }
+  for (const l of s.lineups) {
+    w.text(`Lineup test (${l.panels} panels, seed ${l.seed}): ${l.result.reading}`, { size: 8.5, indent: 20, gap: 1 });
+    if (l.result.caution) w.text(`Caution: ${l.result.caution}`, { size: 8, colour: C.unsure, indent: 20, gap: 2 });
+  }
   doc.y += 6;
   w.rule();
 }

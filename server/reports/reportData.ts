@@ -18,6 +18,7 @@ import type { GofCache } from '../review/gofData';
 import { commentsOf } from '../review/comments';
 import { changedSince, requireDone, verdictCounts, verdictsOf } from '../review/service';
 import { signoffsOf } from '../review/signoffs';
+import { lineupsOf } from '../lineups/service';
 
 const ROOT = resolve(__dirname, '../..');
 
@@ -62,6 +63,7 @@ export function buildReport(
   const fit = batch.row.fitId !== null ? fitInfo(dataSource, studyId, batch.row.fitId) : null;
   const fitParams = new Map((fit?.results?.parameters ?? []).map((p) => [p.key, p]));
 
+  const lineups = lineupsOf(dataSource, batch, 0);
   const statistics: ReportStatisticJson[] = gof.all(dataSource, batch).map((c) => ({
     statistic: c.statistic,
     label: c.label,
@@ -79,6 +81,9 @@ export function buildReport(
     caution: c.caution,
     verdict: verdicts.get(`${c.statistic}@${c.period}`) ?? null,
     comments: comments.filter((m) => m.statistic === c.statistic && m.period === c.period),
+    lineups: lineups
+      .filter((l) => l.statistic === c.statistic && l.period === c.period)
+      .map((l) => ({ id: l.id, panels: l.panels, seed: l.seed, createdBy: l.createdBy, result: l.result })),
   }));
 
   const signoffs = signoffsOf(db, batch.row.id);

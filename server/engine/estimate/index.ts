@@ -19,6 +19,7 @@ export * from './moments';
 export { sampleMoments, type MomentSample } from './sampler';
 export * from './problem';
 export * from './checks';
+export * from './scoreTest';
 export {
   conditionNumber,
   correlationFromCovariance,

@@ -1,0 +1,3 @@
+import { LineupScreen } from '../../../../../../../features/lineups/LineupScreen';
+
+export default LineupScreen;
