@@ -56,6 +56,8 @@ export function EstimateDots({ label, rows, testID }: { label: string; rows: Dot
         {width > 0 ? (
           <VictoryChart width={width} height={height} padding={{ top: 8, bottom: 30, left: 16, right: 16 }} domain={{ x: [lo, hi], y: [0.4, rows.length + 0.6] }} standalone>
             <VictoryAxis
+              crossAxis={false}
+              offsetY={30}
               tickCount={width < 360 ? 4 : 6}
               tickFormat={(t: number) => fmt(t)}
               style={{ axis: { stroke: colors.ruleStrong }, grid: { stroke: colors.rule, strokeWidth: 1 }, tickLabels: axisText, ticks: { stroke: 'transparent' } }}
@@ -122,6 +124,8 @@ export function PairScatter({ a, b, r, colour, testID }: { a: RefitParameterSumm
       {width > 0 ? (
         <VictoryChart width={width} height={height} padding={{ top: 10, bottom: 40, left: 52, right: 14 }} domain={{ x: [xlo, xhi], y: [ylo, yhi] }} standalone>
           <VictoryAxis
+            crossAxis={false}
+            offsetY={40}
             tickCount={width < 360 ? 4 : 6}
             tickFormat={(t: number) => fmt(t)}
             label={a.label}
@@ -129,6 +133,8 @@ export function PairScatter({ a, b, r, colour, testID }: { a: RefitParameterSumm
           />
           <VictoryAxis
             dependentAxis
+            crossAxis={false}
+            offsetX={52}
             tickCount={5}
             tickFormat={(t: number) => fmt(t)}
             style={{ axis: { stroke: colors.ruleStrong }, grid: { stroke: colors.rule }, tickLabels: axisText, ticks: { stroke: 'transparent' } }}
