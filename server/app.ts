@@ -7,6 +7,7 @@ import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler } from 'express';
 import { createAuth } from './auth/guard';
 import { batchesRouter } from './batches/routes';
+import { exploreRouter } from './explore/routes';
 import { modelsRouter } from './models/routes';
 import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
@@ -65,6 +66,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
   api.use('/studies', refitsRouter(routeDeps));
+  api.use('/studies', exploreRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);
   api.use(lineupsRouter(routeDeps));

@@ -208,7 +208,10 @@ export function BatchScreen() {
         active && mayRun ? (
           <Button label="Cancel batch" variant="danger" onPress={doCancel} loading={cancelling} testID="batch-cancel" />
         ) : batch?.state === 'done' ? (
-          <Button label="Review board" icon="pass" href={`/studies/${studyId}/board/${batch.id}`} />
+          <ButtonRow>
+            <Button label="Watch chains" variant="secondary" href={`/studies/${studyId}/explore/batches/${batch.id}`} testID="batch-explore" />
+            <Button label="Review board" icon="pass" href={`/studies/${studyId}/board/${batch.id}`} />
+          </ButtonRow>
         ) : undefined
       }
       testID="batch-page"

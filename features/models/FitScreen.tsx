@@ -161,7 +161,13 @@ export function FitScreen() {
           : undefined
       }
       above={<TextLink href={`/studies/${studyId}/models/${modelId}`}>← {model.data?.model.name ?? 'Model'}</TextLink>}
-      actions={active && mayRun ? <Button label="Cancel fit" variant="danger" onPress={doCancel} loading={busy === 'cancel'} testID="fit-cancel" /> : undefined}
+      actions={
+        active && mayRun ? (
+          <Button label="Cancel fit" variant="danger" onPress={doCancel} loading={busy === 'cancel'} testID="fit-cancel" />
+        ) : fit?.state === 'done' ? (
+          <Button label="Why actors choose" variant="secondary" href={`/studies/${studyId}/explore/fits/${fit.id}?model=${modelId}`} testID="fit-explore" />
+        ) : undefined
+      }
       testID="fit-page"
     >
       {error ? <LoadError message={error.message} onRetry={() => void mutate()} /> : null}

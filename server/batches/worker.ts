@@ -8,7 +8,7 @@
  */
 import { buildEffects, type Effect } from '../engine/effects';
 import { createRng, deriveSeed } from '../engine/prng';
-import { simulatePeriod } from '../engine/simulate';
+import { simulatePeriod, type MinistepObserver } from '../engine/simulate';
 import { NetworkState } from '../engine/state';
 import { auxStatistic } from '../engine/statistics';
 import type { ChunkContext } from '../jobs/registry';
@@ -31,8 +31,18 @@ function prepare(context: BatchContext): Prepared {
   return p;
 }
 
-/** One chain of one period: simulate, overwrite missing end pairs, compute the statistics into `row`. */
-export function simulateChain(context: BatchContext, periodIndex: number, chain: number, row: Float64Array, counts?: Int32Array): number {
+/**
+ * One chain of one period: simulate, overwrite missing end pairs, compute the statistics into `row`.
+ * `observer` sees every ministep (server/explore replays a chain this way; it draws no random numbers).
+ */
+export function simulateChain(
+  context: BatchContext,
+  periodIndex: number,
+  chain: number,
+  row: Float64Array,
+  counts?: Int32Array,
+  observer?: MinistepObserver,
+): number {
   const per = context.periods[periodIndex];
   const { effects, starts } = prepare(context);
   const rng = createRng(deriveSeed(context.seed, chain, per.period));
@@ -44,6 +54,7 @@ export function simulateChain(context: BatchContext, periodIndex: number, chain:
     rng,
     ...(per.free ? { free: per.free } : {}),
     ...(per.active ? { active: per.active } : {}),
+    observer,
   });
   const n = context.n;
   if (counts) for (let k = 0; k < n * n; k++) counts[k] += end.adj[k];

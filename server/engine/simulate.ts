@@ -41,7 +41,17 @@ export interface SimulateOptions {
    * deviations plus 10 (METHODS 8.9).
    */
   maxMinisteps?: number;
+  /**
+   * Called after every ministep with its time, the acting actor, the chosen option (= actor for
+   * "no change") and the sign of the change (+1 created, -1 dissolved, 0 no change). It sees the state
+   * after the ministep and must not change it. It draws no random numbers, so a chain with an observer
+   * is the same chain as without one.
+   */
+  observer?: MinistepObserver;
 }
+
+/** See SimulateOptions.observer. */
+export type MinistepObserver = (t: number, actor: number, choice: number, sign: number, state: NetworkState) => void;
 
 export interface SimulateResult {
   /** The network at t = 1 (a new state, with the caches the effects need). */
@@ -163,6 +173,7 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
   const rowViews: Float64Array[] = [];
   if (rows !== null) for (let k = 0; k < K; k++) rowViews.push(rows.subarray(k * n, (k + 1) * n));
   const perActor = options.countPerActor ? new Int32Array(n) : null;
+  const observer = options.observer ?? null;
 
   let t = 0;
   let R = 0;
@@ -250,10 +261,12 @@ export function simulatePeriod(options: SimulateOptions): SimulateResult {
 
     R++;
     if (perActor !== null) perActor[i]++;
+    let sign = 0;
     if (choice !== i) {
-      state.toggle(i, choice);
+      sign = state.toggle(i, choice);
       changes++;
     }
+    if (observer !== null) observer(t, i, choice, sign, state);
   }
 
   const result: SimulateResult = { end: state, ministeps: R, changes };

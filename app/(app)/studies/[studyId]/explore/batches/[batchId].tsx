@@ -1,0 +1,3 @@
+import { PlaybackScreen } from '../../../../../../features/explore/PlaybackScreen';
+
+export default PlaybackScreen;

@@ -1,0 +1,3 @@
+import { ChoiceScreen } from '../../../../../../features/explore/ChoiceScreen';
+
+export default ChoiceScreen;
