@@ -57,7 +57,7 @@ export function EstimateDots({ label, rows, testID }: { label: string; rows: Dot
           <VictoryChart width={width} height={height} padding={{ top: 8, bottom: 30, left: 16, right: 16 }} domain={{ x: [lo, hi], y: [0.4, rows.length + 0.6] }} standalone>
             <VictoryAxis
               crossAxis={false}
-              offsetY={30}
+              orientation="bottom"
               tickCount={width < 360 ? 4 : 6}
               tickFormat={(t: number) => fmt(t)}
               style={{ axis: { stroke: colors.ruleStrong }, grid: { stroke: colors.rule, strokeWidth: 1 }, tickLabels: axisText, ticks: { stroke: 'transparent' } }}
@@ -125,7 +125,7 @@ export function PairScatter({ a, b, r, colour, testID }: { a: RefitParameterSumm
         <VictoryChart width={width} height={height} padding={{ top: 10, bottom: 40, left: 52, right: 14 }} domain={{ x: [xlo, xhi], y: [ylo, yhi] }} standalone>
           <VictoryAxis
             crossAxis={false}
-            offsetY={40}
+            orientation="bottom"
             tickCount={width < 360 ? 4 : 6}
             tickFormat={(t: number) => fmt(t)}
             label={a.label}
@@ -134,7 +134,7 @@ export function PairScatter({ a, b, r, colour, testID }: { a: RefitParameterSumm
           <VictoryAxis
             dependentAxis
             crossAxis={false}
-            offsetX={52}
+            orientation="left"
             tickCount={5}
             tickFormat={(t: number) => fmt(t)}
             style={{ axis: { stroke: colors.ruleStrong }, grid: { stroke: colors.rule }, tickLabels: axisText, ticks: { stroke: 'transparent' } }}
