@@ -1,3 +1,4 @@
+import '../features/api/zodJitless';
 import { useFonts } from 'expo-font';
 import { Slot } from 'expo-router';
 import { StatusBar } from 'expo-status-bar';

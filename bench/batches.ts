@@ -40,7 +40,7 @@ const RATE = 6;
 const fmt = (x: number, digits = 1) => x.toFixed(digits);
 
 /** A study with two waves of 50 invented crew members: wave 1 random, wave 2 simulated from it. */
-async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: number }> {
+export async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: number }> {
   await ds.query(`INSERT INTO "users" ("email", "name", "passwordHash", "isAdmin") VALUES ('bench@harbourside.example', 'Bench', 'x', 0)`);
   await ds.query(`INSERT INTO "studies" ("name", "description") VALUES ('Harbourside bench', '')`);
   const [{ id: userId }] = await ds.query(`SELECT "id" FROM "users" LIMIT 1`);
@@ -73,7 +73,7 @@ async function makeStudy(ds: DataSource): Promise<{ studyId: number; userId: num
   return { studyId, userId };
 }
 
-const body = (chains: number, seed: number): ParsedCreateBatchBody => ({
+export const body = (chains: number, seed: number): ParsedCreateBatchBody => ({
   model: { rates: [RATE], effects: EFFECTS },
   chains,
   seed,

@@ -6,10 +6,11 @@ import { batchSections } from './batches';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { exploreSections } from './explore';
+import { gofLoadSections } from './gofLoad';
 import { refitSections } from './refits';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections, ...refitSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections, ...refitSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

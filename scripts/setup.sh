@@ -9,4 +9,6 @@ if [ ! -f node_modules/.package-lock.json ] || [ package-lock.json -nt node_modu
 fi
 npx expo export --platform web --output-dir dist
 npm run seed
+# The demo reads its e-mails in the local outbox (site admins only); a real deployment leaves this unset.
+export WAVEFIT_DEV_OUTBOX="${WAVEFIT_DEV_OUTBOX:-1}"
 exec npm start

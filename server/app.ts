@@ -14,6 +14,7 @@ import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
 import { refitsRouter } from './refits/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
+import { securityHeaders } from './securityHeaders';
 import { authRouter } from './auth/routes';
 import { dataRouter } from './data/routes';
 import type { AppDeps } from './deps';
@@ -39,6 +40,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
+  // Before every route, so the web app that main.ts adds gets the headers too.
+  app.use(securityHeaders(config));
   // gzip or brotli for every compressible answer above 1 kB (the API's JSON and the web app served after it).
   app.use(compression());
 
@@ -72,7 +75,8 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use(lineupsRouter(routeDeps));
   api.use(notifyRouter(routeDeps));
   api.use(reportsRouter(routeDeps, review));
-  if (!config.isProduction) api.use('/dev', devRouter(routeDeps));
+  // Only when asked for explicitly (WAVEFIT_DEV_OUTBOX=1, never in production); admins only.
+  if (config.devOutbox && !config.isProduction) api.use('/dev', devRouter(routeDeps));
   api.use(apiNotFound);
 
   app.use('/api', json, api);

@@ -15,6 +15,15 @@ export interface RateLimitConfig {
   windowMs: number;
 }
 
+/** Wrong passwords allowed per account and per address (server/auth/guessLimits.ts). */
+export interface GuessLimitConfig {
+  /** Wrong passwords allowed for one account (any address) within the window. */
+  perAccount: number;
+  /** Wrong passwords allowed from one address (any accounts) within the window. */
+  perAddress: number;
+  windowMs: number;
+}
+
 export interface PasswordHashConfig {
   /** argon2id memory cost in KiB. */
   memoryCost: number;
@@ -48,6 +57,8 @@ export interface Config {
   jsonLimit: string;
   uploadJsonLimit: string;
   loginRateLimit: RateLimitConfig;
+  /** Wrong passwords per account and per address, over sign-in, password change and invitations. */
+  guessLimits: GuessLimitConfig;
   passwordHash: PasswordHashConfig;
   /** Invitations expire after this many days. */
   invitationDays: number;
@@ -59,6 +70,11 @@ export interface Config {
   secureCookies: boolean;
   /** Where the exported web app lives (served by main.ts). */
   distDir: string;
+  /**
+   * Mount GET /api/dev/outbox (the e-mails kept by the local outbox, invitation links included),
+   * for signed-in site admins only. Only when WAVEFIT_DEV_OUTBOX=1 and never in production.
+   */
+  devOutbox: boolean;
 }
 
 /** Common practice (OWASP password storage guidance, 2023): argon2id, 19 MiB, 2 passes, 1 lane. */
@@ -128,11 +144,13 @@ function trustProxyFromEnv(raw: string | undefined): boolean | number | string {
 /** Builds the configuration from environment variables (process.env by default). */
 export function loadConfig(env: Env = process.env, overrides: Partial<Config> = {}): Config {
   const nodeEnv = env.NODE_ENV || 'development';
+  // NODE_ENV=Production or PRODUCTION is production too.
+  const isProduction = nodeEnv.trim().toLowerCase() === 'production';
   const port = intFromEnv(env, 'PORT', 4300);
   const dbPath = overrides.dbPath ?? (env.WAVEFIT_DB || DEFAULT_DB_PATH);
   const config: Config = {
     nodeEnv,
-    isProduction: nodeEnv === 'production',
+    isProduction,
     version: packageJson.version,
     port,
     dbPath,
@@ -145,13 +163,21 @@ export function loadConfig(env: Env = process.env, overrides: Partial<Config> = 
       max: intFromEnv(env, 'LOGIN_RATE_LIMIT', 10),
       windowMs: intFromEnv(env, 'LOGIN_RATE_WINDOW_MINUTES', 15) * 60_000,
     },
+    guessLimits: {
+      perAccount: intFromEnv(env, 'GUESS_LIMIT_ACCOUNT', 20),
+      perAddress: intFromEnv(env, 'GUESS_LIMIT_ADDRESS', 30),
+      windowMs: intFromEnv(env, 'LOGIN_RATE_WINDOW_MINUTES', 15) * 60_000,
+    },
     passwordHash: DEFAULT_PASSWORD_HASH,
     invitationDays: 7,
     mailFrom: env.MAIL_FROM || 'Wavefit <no-reply@wavefit.invalid>',
     smtp: smtpFromEnv(env),
     trustProxy: trustProxyFromEnv(env.TRUST_PROXY),
-    secureCookies: env.SECURE_COOKIES === 'true' || (env.PUBLIC_URL ?? '').startsWith('https://'),
+    // Secure cookies with an https address and in production, unless SECURE_COOKIES=false says otherwise.
+    secureCookies:
+      env.SECURE_COOKIES === 'false' ? false : env.SECURE_COOKIES === 'true' || (env.PUBLIC_URL ?? '').startsWith('https://') || isProduction,
     distDir: resolve(env.WAVEFIT_DIST || 'dist'),
+    devOutbox: env.WAVEFIT_DEV_OUTBOX === '1' && !isProduction,
   };
   return { ...config, ...overrides };
 }

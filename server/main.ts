@@ -3,7 +3,7 @@
  * (dist/) for everything else, on one port (PORT, default 4300).
  *
  * Environment: PORT, WAVEFIT_DB, WAVEFIT_SECRET, PUBLIC_URL, SMTP_URL or SMTP_HOST/PORT/USER/PASS,
- * MAIL_FROM, TRUST_PROXY, SECURE_COOKIES, LOGIN_RATE_LIMIT, LOGIN_RATE_WINDOW_MINUTES, WAVEFIT_DIST,
+ * MAIL_FROM, TRUST_PROXY, SECURE_COOKIES, WAVEFIT_DEV_OUTBOX (1: mount the admins' outbox outside production), LOGIN_RATE_LIMIT, LOGIN_RATE_WINDOW_MINUTES, WAVEFIT_DIST,
  * WAVEFIT_SEED_DEMO (1: seed the demo study; 0: never; unset: seed a fresh database outside production).
  */
 import { existsSync } from 'node:fs';
@@ -80,7 +80,9 @@ export async function start(config: Config = loadConfig()): Promise<Server> {
     console.log(
       config.isProduction
         ? 'Warning: no SMTP settings (SMTP_URL or SMTP_HOST); e-mails are kept in memory and not delivered.'
-        : 'Mail: local outbox (GET /api/dev/outbox); set SMTP_URL or SMTP_HOST to deliver for real.',
+        : config.devOutbox
+          ? 'Mail: local outbox (GET /api/dev/outbox, site admins only); set SMTP_URL or SMTP_HOST to deliver for real.'
+          : 'Mail: kept in memory and not delivered (set WAVEFIT_DEV_OUTBOX=1 to read it at /api/dev/outbox as an admin, or SMTP_URL / SMTP_HOST to deliver).',
     );
   }
   const app = createApp({ dataSource, mailer, config });

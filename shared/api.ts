@@ -5,9 +5,10 @@
  *
  * Endpoints (all under /api; auth by httpOnly cookie "wavefit_token" or "Authorization: Bearer <jwt>"):
  *   POST   /auth/login                         LoginBody            -> SessionResponse (+ cookie)
- *   POST   /auth/logout                                             -> 204 (cookie cleared)
+ *   POST   /auth/logout                                             -> 204 (this session ended, cookie cleared)
+ *   POST   /auth/logout-everywhere                                  -> 204 (every session of the user ended)
  *   GET    /auth/me                                                 -> SessionResponse
- *   POST   /auth/password                      ChangePasswordBody   -> 204
+ *   POST   /auth/password                      ChangePasswordBody   -> SessionResponse (+ cookie; other sessions ended)
  *   GET    /invitations/:token                                      -> InvitationPreview
  *   POST   /invitations/:token/accept          AcceptInvitationBody -> SessionResponse (+ cookie)
  *   GET    /studies                                                 -> { studies: StudySummary[] }
@@ -19,14 +20,15 @@
  *   DELETE /studies/:studyId/invitations/:id                        -> 204 (lead)
  *   PATCH  /studies/:studyId/members/:userId   ChangeRoleBody       -> { member: Member }        (lead; never leaves a study without a lead)
  *   DELETE /studies/:studyId/members/:userId                        -> 204 (lead; never removes the last lead)
- *   GET    /dev/outbox                                              -> { messages: OutboxMessage[] } (not in production)
- *   GET    /health                                                  -> HealthResponse { ok: true, version, devOutbox }
+ *   GET    /health                                                  -> HealthResponse
+ *   GET    /dev/outbox   (only when HealthResponse.devOutbox; admins)   -> { messages: OutboxMessage[] }
  * Study data (contract in shared/data.ts):
  *   POST   /studies/:studyId/data              DataUploadBody       -> DataUploadResponse (lead, statistician; replaces the data)
  *   GET    /studies/:studyId/data                                   -> StudyDataResponse  (members)
  *   GET    /studies/:studyId/data/waves/:index                      -> WaveTiesResponse   (members; index from 1)
  */
 import { z } from 'zod';
+import { PLAIN_LINE_MESSAGE, PLAIN_TEXT_MESSAGE, isPlainLine, isPlainText } from './plainText';
 
 // ---------- roles ----------
 export const STUDY_ROLES = ['lead', 'statistician', 'reviewer'] as const;
@@ -58,7 +60,8 @@ export interface ApiErrorBody {
  * The error codes the server sends (ApiErrorBody.error.code), with their HTTP status:
  * bad_request 400, validation_failed 400 (details: FieldErrorDetails), malformed_json 400,
  * data_invalid 400 (details: DataProblemDetails, shared/data.ts), unauthenticated 401,
- * token_expired 401, token_invalid 401, invalid_credentials 401, forbidden 403, not_found 404,
+ * token_expired 401, token_invalid 401, session_ended 401 (signed out, signed out everywhere or
+ * password changed), invalid_credentials 401, forbidden 403, not_found 404,
  * already_member 409, last_lead 409, data_in_use 409, invitation_expired 410, invitation_used 410,
  * fit_not_ready 409, refit_not_ready 409, refit_not_running 409 (re-fit studies, shared/refits.ts), payload_too_large 413, rate_limited 429, internal 500.
  */
@@ -70,6 +73,7 @@ export type ApiErrorCode =
   | 'unauthenticated'
   | 'token_expired'
   | 'token_invalid'
+  | 'session_ended'
   | 'invalid_credentials'
   | 'forbidden'
   | 'not_found'
@@ -115,12 +119,15 @@ export const changePasswordBodySchema = z.object({
 export type ChangePasswordBody = z.infer<typeof changePasswordBodySchema>;
 
 export const acceptInvitationBodySchema = z.object({
-  name: z.string().trim().min(1, 'Enter your name.').max(120),
+  name: z.string().trim().min(1, 'Enter your name.').max(120).refine(isPlainLine, `A name ${PLAIN_LINE_MESSAGE}.`),
   password: passwordSchema,
 });
 export type AcceptInvitationBody = z.infer<typeof acceptInvitationBodySchema>;
 
-/** GET /api/health. `devOutbox`: the server mounts the development outbox (clients treat a missing field as false). */
+/**
+ * GET /api/health. `devOutbox`: the server mounts the development outbox (WAVEFIT_DEV_OUTBOX=1, never
+ * in production; site admins only); clients treat a missing field as false.
+ */
 export interface HealthResponse {
   ok: boolean;
   version: string;
@@ -152,15 +159,15 @@ export interface InvitationPreview {
 
 // ---------- studies ----------
 export const createStudyBodySchema = z.object({
-  name: z.string().trim().min(3, 'A study name needs at least 3 characters.').max(120, 'A study name may have at most 120 characters.'),
-  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').default(''),
+  name: z.string().trim().min(3, 'A study name needs at least 3 characters.').max(120, 'A study name may have at most 120 characters.').refine(isPlainLine, `A study name ${PLAIN_LINE_MESSAGE}.`),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).default(''),
 });
 export type CreateStudyBody = z.input<typeof createStudyBodySchema>;
 
 /** Only the fields sent change (no defaults here, so a rename keeps the description). */
 export const updateStudyBodySchema = z.object({
   name: createStudyBodySchema.shape.name.optional(),
-  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').optional(),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).optional(),
 });
 export type UpdateStudyBody = z.input<typeof updateStudyBodySchema>;
 

@@ -27,6 +27,8 @@
 import { z } from 'zod';
 import { AUX_STATISTIC_IDS, isAuxStatisticId, type AuxStatisticId } from './auxStatistics';
 import { EFFECT_IDS, type EffectId } from './effects';
+import { MAX_PARAMETER, MAX_RATE } from './models';
+import { PLAIN_LINE_MESSAGE, isPlainLine } from './plainText';
 
 export const DEFAULT_CHAINS = 1000;
 export const MIN_CHAINS = 2;
@@ -46,15 +48,21 @@ const finite = (what: string) => z.number({ error: `${what} must be a number.` }
 
 export const inlineEffectSchema = z.object({
   id: z.enum(EFFECT_IDS, { error: `The effect id must be one of: ${EFFECT_IDS.join(', ')}.` }),
-  covariate: z.string().trim().min(1).max(60).optional(),
-  value: finite('An effect value'),
+  covariate: z.string().trim().min(1).max(60).refine(isPlainLine, `A covariate name ${PLAIN_LINE_MESSAGE}.`).optional(),
+  // The same bounds as a fit's parameters (shared/models.ts).
+  value: finite('An effect value').refine((v) => Math.abs(v) <= MAX_PARAMETER, `An effect value must lie between -${MAX_PARAMETER} and ${MAX_PARAMETER}.`),
 });
 export type InlineEffect = z.infer<typeof inlineEffectSchema>;
 
 /** A hand-entered model: one rate per period of the study and a value per effect. */
 export const inlineModelSchema = z.object({
   rates: z
-    .array(finite('A rate').refine((v) => v > 0, 'A rate must be greater than 0.'), { error: 'Give the rates as a list of numbers, one per period.' })
+    .array(
+      finite('A rate')
+        .refine((v) => v > 0, 'A rate must be greater than 0.')
+        .refine((v) => v <= MAX_RATE, `A rate may be at most ${MAX_RATE}.`),
+      { error: 'Give the rates as a list of numbers, one per period.' },
+    )
     .min(1, 'Give one rate per period.'),
   effects: z.array(inlineEffectSchema).min(1, 'A model needs at least one effect (usually density).').max(40, 'A model may have at most 40 effects.'),
 });
@@ -72,7 +80,7 @@ export const createBatchBodySchema = z
     fitId: z.number().int().positive().optional(),
     /** Or a hand-entered model. */
     model: inlineModelSchema.optional(),
-    label: z.string().trim().max(120, 'A label may have at most 120 characters.').optional(),
+    label: z.string().trim().max(120, 'A label may have at most 120 characters.').refine(isPlainLine, `A label ${PLAIN_LINE_MESSAGE}.`).optional(),
     /** Periods to simulate (from 1); default: every period. */
     periods: z
       .array(z.number().int('A period is a whole number.').min(1, 'Periods are numbered from 1.'))

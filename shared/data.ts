@@ -51,6 +51,7 @@
  * changes unless the whole upload is valid.
  */
 import { z } from 'zod';
+import { PLAIN_LINE_MESSAGE, isPlainLine } from './plainText';
 
 export const MAX_FILE_BYTES = 2 * 1024 * 1024;
 export const MAX_PROBLEMS = 20;
@@ -71,7 +72,7 @@ export const dataUploadBodySchema = z.object({
   waves: z
     .array(
       z.object({
-        label: z.string().trim().max(MAX_LABEL_LENGTH, `A wave label may have at most ${MAX_LABEL_LENGTH} characters.`),
+        label: z.string().trim().max(MAX_LABEL_LENGTH, `A wave label may have at most ${MAX_LABEL_LENGTH} characters.`).refine(isPlainLine, `A wave label ${PLAIN_LINE_MESSAGE}.`),
         content: fileText,
         /** The file's name, used in problem messages (defaults to the wave label). */
         fileName,

@@ -28,6 +28,7 @@
  */
 import { z } from 'zod';
 import { EFFECT_IDS, effectInfo, type EffectId } from './effects';
+import { PLAIN_LINE_MESSAGE, PLAIN_TEXT_MESSAGE, isPlainLine, isPlainText } from './plainText';
 
 export const MAX_MODEL_EFFECTS = 40;
 export const DEFAULT_PHASE3_RUNS = 500;
@@ -71,7 +72,7 @@ export type RateSpec = z.infer<typeof rateSpecSchema>;
 export const effectSpecSchema = z
   .object({
     id: z.enum(EFFECT_IDS, { error: `The effect must be one of: ${EFFECT_IDS.join(', ')}.` }),
-    covariate: z.string().trim().min(1, 'Choose a covariate.').max(60).optional(),
+    covariate: z.string().trim().min(1, 'Choose a covariate.').max(60).refine(isPlainLine, `A covariate name ${PLAIN_LINE_MESSAGE}.`).optional(),
     estimate: z.boolean({ error: 'Say whether the parameter is estimated (true) or fixed (false).' }),
     /** Starting value when estimated (optional), the value when fixed. */
     value: finite('A parameter value')
@@ -97,8 +98,9 @@ const modelFields = {
     .string({ error: 'Give the model a name.' })
     .trim()
     .min(1, 'Give the model a name.')
-    .max(120, 'A model name may have at most 120 characters.'),
-  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').default(''),
+    .max(120, 'A model name may have at most 120 characters.')
+    .refine(isPlainLine, `A model name ${PLAIN_LINE_MESSAGE}.`),
+  description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).default(''),
   rates: z
     .array(rateSpecSchema, { error: 'Give one rate per period the model covers.' })
     .min(1, 'A model covers at least one period (wave m to wave m + 1).')
@@ -142,7 +144,7 @@ export type ParsedModelSpecBody = z.output<typeof modelSpecBodySchema>;
 export const modelUpdateBodySchema = z
   .object({
     name: modelFields.name.optional(),
-    description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').optional(),
+    description: z.string().trim().max(2000, 'The description may have at most 2000 characters.').refine(isPlainText, `The description ${PLAIN_TEXT_MESSAGE}.`).optional(),
     rates: modelFields.rates.optional(),
     effects: modelFields.effects.optional(),
   })

@@ -41,6 +41,7 @@ import { z } from 'zod';
 import type { LineupResult } from './lineups';
 import type { RefitResults } from './refits';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
+import { PLAIN_TEXT_MESSAGE, isPlainText } from './plainText';
 
 export * from './reviewChart';
 
@@ -75,7 +76,7 @@ export const verdictBodySchema = z.object({
   statistic: statisticSchema,
   period: periodSchema,
   verdict: z.enum(VERDICTS, { error: 'The verdict must be "pass", "fail" or "unsure".' }),
-  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).refine(isPlainText, `A note ${PLAIN_TEXT_MESSAGE}.`).default(''),
   /** The version the client last saw: 0 when the card had no verdict yet. */
   version: z
     .number({ error: 'Send the version of the verdict you last saw (0 when there was none).' })
@@ -126,7 +127,7 @@ export type NotificationPreferencesBody = z.input<typeof notificationPreferences
 export const MIN_ACK_REASON = 10;
 
 export const signoffBodySchema = z.object({
-  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).default(''),
+  note: z.string({ error: 'The note must be text.' }).trim().max(MAX_NOTE, `A note may have at most ${MAX_NOTE} characters.`).refine(isPlainText, `A note ${PLAIN_TEXT_MESSAGE}.`).default(''),
   /**
    * Needed when the report has concerns (ReportStatus.concerns: the fit did not converge, or the
    * batch ran fewer chains than FEW_CHAINS): the lead's reason for signing off anyway. It goes into
@@ -139,7 +140,8 @@ export const signoffBodySchema = z.object({
           .string({ error: 'The reason must be text.' })
           .trim()
           .min(MIN_ACK_REASON, `Give a reason of at least ${MIN_ACK_REASON} characters for signing off despite the concerns.`)
-          .max(MAX_NOTE, `A reason may have at most ${MAX_NOTE} characters.`),
+          .max(MAX_NOTE, `A reason may have at most ${MAX_NOTE} characters.`)
+          .refine(isPlainText, `A reason ${PLAIN_TEXT_MESSAGE}.`),
       },
       { error: 'The acknowledgement is an object with a reason.' },
     )

@@ -52,7 +52,7 @@ function ChangePasswordForm() {
   return (
     <Card>
       <View role="form" accessibilityLabel="Change password" style={{ gap: space.s2 }}>
-        {done ? <Banner tone="success">Your password is changed.</Banner> : null}
+        {done ? <Banner tone="success">Your password is changed. Every other session of this account has ended; this one goes on.</Banner> : null}
         {formError ? <Banner tone="error">{formError}</Banner> : null}
         <TextField label="Current password" value={currentPassword} onChangeText={setCurrent} error={errors.currentPassword} secureTextEntry autoComplete="current-password" />
         <TextField
@@ -66,6 +66,42 @@ function ChangePasswordForm() {
         />
         <TextField label="New password again" value={repeat} onChangeText={setRepeat} error={errors.repeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} />
         <Button label="Change password" onPress={submit} loading={busy} />
+      </View>
+    </Card>
+  );
+}
+
+function SignOutEverywhere() {
+  const { signOutEverywhere } = useSession();
+  const router = useRouter();
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  return (
+    <Card>
+      <View style={{ gap: space.s2 }}>
+        <Text>
+          Ends every session of this account: on this browser and on any other computer or phone where you are signed in.
+          Use it when you signed in on a shared computer or think someone else has your session.
+        </Text>
+        {error ? <Banner tone="error">{error}</Banner> : null}
+        <Button
+          label="Sign out everywhere"
+          icon="signOut"
+          variant="secondary"
+          loading={busy}
+          onPress={async () => {
+            setBusy(true);
+            setError(null);
+            try {
+              await signOutEverywhere();
+              forgetReturnPath();
+              router.replace('/sign-in');
+            } catch (e) {
+              setError(messageOf(e));
+              setBusy(false);
+            }
+          }}
+        />
       </View>
     </Card>
   );
@@ -104,6 +140,9 @@ export function AccountScreen() {
       ) : null}
       <Section title="Change password">
         <ChangePasswordForm />
+      </Section>
+      <Section title="Sessions">
+        <SignOutEverywhere />
       </Section>
       <Section title="Notifications">
         <NotificationPreferences />

@@ -65,6 +65,18 @@ export async function errorFromResponse(res: Response): Promise<ApiError> {
 
 type Method = 'GET' | 'POST' | 'PATCH' | 'DELETE';
 
+/**
+ * Called when any request learns that the session is over (401 session_ended or token_expired),
+ * with the server's sentence. The session provider listens and returns to sign-in.
+ */
+type SessionEndedListener = (message: string) => void;
+const sessionEndedListeners = new Set<SessionEndedListener>();
+export function onSessionEnded(listener: SessionEndedListener): () => void {
+  sessionEndedListeners.add(listener);
+  return () => sessionEndedListeners.delete(listener);
+}
+const ENDED_CODES = new Set(['session_ended', 'token_expired']);
+
 export async function request<T>(method: Method, path: string, body?: unknown): Promise<T> {
   if (!path.startsWith('/')) throw new Error(`api: path must start with "/", got "${path}"`);
   const headers: Record<string, string> = { Accept: 'application/json' };
@@ -79,7 +91,14 @@ export async function request<T>(method: Method, path: string, body?: unknown): 
   } catch {
     throw new ApiError(0, 'network', 'Cannot reach the Wavefit server. Check your connection and try again.');
   }
-  if (!res.ok) throw await errorFromResponse(res);
+  if (!res.ok) {
+    const error = await errorFromResponse(res);
+    // GET /auth/me reports its own answer to the session provider; telling it again would loop.
+    if (error.status === 401 && ENDED_CODES.has(error.code) && path !== '/auth/me') {
+      for (const listener of sessionEndedListeners) listener(error.message);
+    }
+    throw error;
+  }
   if (res.status === 204) return undefined as T;
   const raw = await res.text();
   if (!raw) return undefined as T;

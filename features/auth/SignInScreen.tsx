@@ -40,6 +40,11 @@ export function SignInScreen() {
   return (
     <AuthFrame title="Sign in" subtitle="Use the e-mail address your study lead invited.">
       <View style={{ gap: space.s2 }} role="form" accessibilityLabel="Sign in">
+        {session.endedMessage && !formError ? (
+          <Banner tone="info" word="Signed out" testID="session-ended">
+            {session.endedMessage}
+          </Banner>
+        ) : null}
         {formError ? (
           <Banner tone="error" testID="sign-in-error">
             {formError}

@@ -2,10 +2,14 @@
  * The session: who is signed in, read from GET /api/auth/me through swr. A 401 means signed
  * out. Signing in or accepting an invitation writes the session into the cache; signing out
  * clears every cached resource so the next user sees nothing of the last one.
+ *
+ * When any request answers 401 session_ended or token_expired (signed out elsewhere, password
+ * changed, session too old) the cache is cleared, the gate returns to sign-in, and the sign-in
+ * screen says why in a plain sentence (endedMessage).
  */
-import { createContext, useCallback, useContext, useMemo } from 'react';
+import { createContext, useCallback, useContext, useEffect, useMemo, useState } from 'react';
 import useSWR, { useSWRConfig } from 'swr';
-import { api, ApiError } from '../api/client';
+import { api, ApiError, onSessionEnded } from '../api/client';
 import type { ChangePasswordBody, LoginBody, SessionResponse, UserInfo } from '../../shared/api';
 
 export const sessionKey = '/auth/me';
@@ -18,6 +22,10 @@ export interface Session {
   error: ApiError | null;
   signIn: (body: LoginBody) => Promise<UserInfo>;
   signOut: () => Promise<void>;
+  /** Ends every session of this account, on every device, this one included. */
+  signOutEverywhere: () => Promise<void>;
+  /** Why the last session ended, when it was not this browser's own sign-out; shown on sign-in. */
+  endedMessage: string | null;
   /** Store a session the server just created (invitation accepted). */
   adopt: (session: SessionResponse) => Promise<void>;
   changePassword: (body: ChangePasswordBody) => Promise<void>;
@@ -33,8 +41,22 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
     revalidateOnFocus: true,
   });
 
+  const [endedMessage, setEndedMessage] = useState<string | null>(null);
+
+  useEffect(
+    () =>
+      onSessionEnded((message) => {
+        setEndedMessage(message);
+        // Forget everything the ended session could read (the session itself too: swr would keep
+        // stale data beside the 401), then learn that we are signed out.
+        void mutateAny(() => true, undefined, { revalidate: false }).then(() => me.mutate());
+      }),
+    [me, mutateAny],
+  );
+
   const adopt = useCallback(
     async (session: SessionResponse) => {
+      setEndedMessage(null);
       // Drop whatever another account may have left in the cache, then store the new session.
       await mutateAny((key) => key !== sessionKey, undefined, { revalidate: false });
       await me.mutate(session, { revalidate: false });
@@ -52,6 +74,7 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
   );
 
   const signOut = useCallback(async () => {
+    setEndedMessage(null);
     try {
       await api.post<void>('/auth/logout');
     } finally {
@@ -60,9 +83,21 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
     }
   }, [me, mutateAny]);
 
-  const changePassword = useCallback(async (body: ChangePasswordBody) => {
-    await api.post<void>('/auth/password', body);
-  }, []);
+  const signOutEverywhere = useCallback(async () => {
+    await api.post<void>('/auth/logout-everywhere');
+    await mutateAny(() => true, undefined, { revalidate: false });
+    setEndedMessage('You are signed out on every device and browser.');
+    await me.mutate();
+  }, [me, mutateAny]);
+
+  const changePassword = useCallback(
+    async (body: ChangePasswordBody) => {
+      // The server ends every other session and hands this one a fresh token (cookie).
+      const session = await api.post<SessionResponse>('/auth/password', body);
+      await me.mutate(session, { revalidate: false });
+    },
+    [me],
+  );
 
   const value = useMemo<Session>(() => {
     let status: SessionStatus;
@@ -76,11 +111,13 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
       error: me.error ?? null,
       signIn,
       signOut,
+      signOutEverywhere,
+      endedMessage: endedMessage ?? (me.error?.code === 'session_ended' ? me.error.message : null),
       adopt,
       changePassword,
       refresh: () => me.mutate(),
     };
-  }, [me, signIn, signOut, adopt, changePassword]);
+  }, [me, signIn, signOut, signOutEverywhere, endedMessage, adopt, changePassword]);
 
   return <SessionContext.Provider value={value}>{children}</SessionContext.Provider>;
 }

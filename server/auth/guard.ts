@@ -13,14 +13,26 @@ import { MembershipEntity } from '../team/entities';
 import { StudyEntity } from '../studies/entities';
 import { UserEntity, type User } from './entities';
 import { ApiError, forbidden, idParam, notFound } from '../errors';
-import { SESSION_COOKIE, signSession, verifySession, type SessionToken } from './tokens';
+import { createGuessLimits, type GuessLimits } from './guessLimits';
+import { EndedSessionEntity } from './entities';
+import { SESSION_COOKIE, sessionEnded, signSession, verifySession, type SessionToken } from './tokens';
 
 export interface Auth {
   requireUser: RequestHandler;
   requireStudyRole(ability: Ability): RequestHandler;
   /** Signs the user in: sets the cookie and returns the token for the response body. */
   startSession(res: Response, user: User): SessionToken;
+  /** Clears the cookie. */
   endSession(res: Response): void;
+  /**
+   * Ends the session of the request's token, if it carries a genuine one: its id is listed as
+   * ended until it expires. Used by sign-out; an invalid or missing token is ignored.
+   */
+  endThisSession(req: Request): Promise<void>;
+  /** Ends every session of the user (raises the session epoch); returns the user with the new epoch. */
+  endAllSessions(user: User): Promise<User>;
+  /** The app's limits on wrong passwords, per account and per address (one set of counters). */
+  guessLimits: GuessLimits;
 }
 
 const ABILITY_WORDS: Record<Ability, string> = {
@@ -55,6 +67,7 @@ export function createAuth(deps: { dataSource: DataSource; config: Config }): Au
   const users = dataSource.getRepository(UserEntity);
   const studies = dataSource.getRepository(StudyEntity);
   const memberships = dataSource.getRepository(MembershipEntity);
+  const ended = dataSource.getRepository(EndedSessionEntity);
 
   const cookieOptions: CookieOptions = {
     httpOnly: true,
@@ -63,12 +76,17 @@ export function createAuth(deps: { dataSource: DataSource; config: Config }): Au
     path: '/',
   };
 
-  const requireUser: RequestHandler = async (req, _res, next) => {
+  const requireUser: RequestHandler = async (req, res, next) => {
     const token = tokenFrom(req);
     if (!token) throw new ApiError(401, 'unauthenticated', 'Sign in to continue.');
     const session = verifySession(config, token);
     const user = await users.findOneBy({ id: session.userId });
     if (!user) throw new ApiError(401, 'token_invalid', 'The account of this session no longer exists. Sign in again.');
+    if (session.epoch !== user.sessionEpoch || (await ended.existsBy({ tokenId: session.tokenId }))) {
+      // The browser need not send the dead cookie again.
+      if (!req.get('authorization')) res.clearCookie(SESSION_COOKIE, cookieOptions);
+      throw sessionEnded();
+    }
     req.auth = { user, token, expiresAt: session.expiresAt };
     next();
   };
@@ -95,13 +113,37 @@ export function createAuth(deps: { dataSource: DataSource; config: Config }): Au
   return {
     requireUser,
     requireStudyRole,
+    guessLimits: createGuessLimits(config.guessLimits),
     startSession(res, user) {
-      const session = signSession(config, user.id);
+      const session = signSession(config, user.id, user.sessionEpoch);
       res.cookie(SESSION_COOKIE, session.token, { ...cookieOptions, maxAge: config.tokenTtlSeconds * 1000 });
       return session;
     },
     endSession(res) {
       res.clearCookie(SESSION_COOKIE, cookieOptions);
+    },
+    async endThisSession(req) {
+      let token: string | null;
+      try {
+        token = tokenFrom(req);
+      } catch {
+        return;
+      }
+      if (!token) return;
+      let session;
+      try {
+        session = verifySession(config, token);
+      } catch {
+        return; // expired, forged or already ended: nothing to end
+      }
+      // Rows of tokens that have expired anyway are no longer needed.
+      await ended.createQueryBuilder().delete().where('"expiresAt" < :now', { now: new Date() }).execute();
+      if (!(await users.existsBy({ id: session.userId }))) return;
+      await ended.upsert({ tokenId: session.tokenId, userId: session.userId, expiresAt: session.expiresAt }, ['tokenId']);
+    },
+    async endAllSessions(user) {
+      await users.increment({ id: user.id }, 'sessionEpoch', 1);
+      return users.findOneByOrFail({ id: user.id });
     },
   };
 }

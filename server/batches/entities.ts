@@ -120,3 +120,32 @@ export const BatchTieCountsEntity = new EntitySchema<BatchTieCounts>({
     batch: { type: 'many-to-one', target: 'Batch', joinColumn: { name: 'batchId', foreignKeyConstraintName: 'FK_batch_tie_counts_batch' }, onDelete: 'CASCADE' },
   },
 });
+
+/**
+ * The goodness of fit of a finished batch, computed once (in a worker thread) and kept: one row per
+ * period and set of coverages, the JSON of every statistic's GofResponse and simulated SDs
+ * (server/batches/gofStore.ts). Only the default coverages are stored; other coverages stay in memory.
+ */
+export interface BatchGof {
+  batchId: number;
+  period: number;
+  /** The coverages, as requested, joined by commas ("0.5,0.9"). */
+  coverages: string;
+  /** StatisticGof[] JSON. */
+  results: string;
+  batch?: Batch;
+}
+
+export const BatchGofEntity = new EntitySchema<BatchGof>({
+  name: 'BatchGof',
+  tableName: 'batch_gof',
+  columns: {
+    batchId: { type: 'integer', primary: true },
+    period: { type: 'integer', primary: true },
+    coverages: { type: 'varchar', length: 60, primary: true },
+    results: { type: 'text' },
+  },
+  relations: {
+    batch: { type: 'many-to-one', target: 'Batch', joinColumn: { name: 'batchId', foreignKeyConstraintName: 'FK_batch_gof_batch' }, onDelete: 'CASCADE' },
+  },
+});

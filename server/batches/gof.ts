@@ -13,6 +13,7 @@ import {
   type GofSummaryResponse,
   type StatisticLayout,
 } from '../../shared/batches';
+import { csvLine } from '../../shared/csvSafe';
 import { badRequest, conflict } from '../errors';
 import { componentsOutside, envelope } from '../engine/gof/envelope';
 import { mahalanobisTest, type MahalanobisResult, type SampleMatrix } from '../engine/gof/mahalanobis';
@@ -173,8 +174,13 @@ export function gofOf(
 
 export function gofSummaryOf(batch: LoadedBatch, matrix: { chains: number; width: number; data: Float64Array }, period: number, coverages: number[]): GofSummaryResponse {
   const { offsets } = layoutOffsets(batch.layout);
-  const rows = batch.layout.map((layout) => {
-    const g = gofOf(batch, matrix, { layout, offset: offsets.get(layout.statistic)! }, period, coverages);
+  const gofs = batch.layout.map((layout) => gofOf(batch, matrix, { layout, offset: offsets.get(layout.statistic)! }, period, coverages));
+  return gofSummaryFrom(batch, gofs, period, coverages);
+}
+
+/** The summary of a period from its statistics' GofResponses (as stored by gofStore.ts). */
+export function gofSummaryFrom(batch: Pick<LoadedBatch, 'row'>, gofs: GofResponse[], period: number, coverages: number[]): GofSummaryResponse {
+  const rows = gofs.map((g) => {
     const wide = g.bands.reduce((a, b) => (b.coverage > a.coverage ? b : a), g.bands[0]);
     return {
       statistic: g.statistic,
@@ -189,17 +195,17 @@ export function gofSummaryOf(batch: LoadedBatch, matrix: { chains: number; width
       caution: g.caution,
     };
   });
-  return { batchId: batch.row.id, period, chains: matrix.chains, coverages, rows };
+  return { batchId: batch.row.id, period, chains: gofs[0]?.test.chains ?? 0, coverages, rows };
 }
 
 export function statisticsCsv(batch: LoadedBatch, matrix: { chains: number; width: number; data: Float64Array }, statistic: { layout: StatisticLayout; offset: number }, period: number): string {
-  const escape = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
   const { layout, offset } = statistic;
-  const lines = [['chain', ...layout.components.map((c) => `${layout.statistic}:${c}`)].map(escape).join(',')];
+  // Cells through shared/csvSafe.ts, like every CSV the product writes (no cell can start a formula).
+  const lines = [csvLine(['chain', ...layout.components.map((c) => `${layout.statistic}:${c}`)])];
   for (let s = 0; s < matrix.chains; s++) {
-    const values: string[] = [String(s + 1)];
-    for (let k = 0; k < layout.components.length; k++) values.push(String(matrix.data[s * matrix.width + offset + k]));
-    lines.push(values.join(','));
+    const values: number[] = [s + 1];
+    for (let k = 0; k < layout.components.length; k++) values.push(matrix.data[s * matrix.width + offset + k]);
+    lines.push(csvLine(values));
   }
   return lines.join('\n') + '\n';
 }

@@ -3,6 +3,7 @@
  * computed by ./worker.ts, stored as one statistics blob per chunk and period plus per-tie counts
  * summed into one row per period, all in the chunk's transaction.
  */
+import { batchDone } from './gofHooks';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { CHAINS_PER_CHUNK, type BatchModel } from '../../shared/batches';
@@ -131,7 +132,11 @@ registerJobKind<BatchJobPayload, BatchChunk, BatchContext, BatchChunkResult>(BAT
   loadContext: (job, dataSource) => loadBatchContext(dataSource, job.payload.batchId),
   storeChunk: (db, job, chunkIndex, chunk, result) => storeBatchChunk(db, job.payload.batchId, chunkIndex, chunk, result),
   // Notifications (server/notify): the team hears when a batch finished or failed.
-  finish: (db, job) => recordBatchEnded(db, job.payload.batchId, 'done'),
+  // and its goodness of fit is computed once, in a worker, right after (gofStore.ts).
+  finish: (db, job) => {
+    recordBatchEnded(db, job.payload.batchId, 'done');
+    batchDone(db, job.payload.batchId);
+  },
   onEnd(db, job, state, reason) {
     recordBatchEnded(db, job.payload.batchId, state, reason);
     // A cancelled or failed batch keeps no partial results (its GOF would describe fewer chains than asked).

@@ -27,3 +27,21 @@ export class Batches1733100000900 implements MigrationInterface {
     await q.query(`DROP TABLE "batches"`);
   }
 }
+
+/**
+ * Migration: batch_gof, the goodness of fit of each finished batch computed once and kept
+ * (server/batches/gofStore.ts). Listed in server/db/migrations.ts after the sessions.
+ */
+export class BatchGof1733100002300 implements MigrationInterface {
+  name = 'BatchGof1733100002300';
+
+  async up(q: QueryRunner): Promise<void> {
+    await q.query(
+      `CREATE TABLE "batch_gof" ("batchId" integer NOT NULL, "period" integer NOT NULL, "coverages" varchar(60) NOT NULL, "results" text NOT NULL, CONSTRAINT "FK_batch_gof_batch" FOREIGN KEY ("batchId") REFERENCES "batches" ("id") ON DELETE CASCADE ON UPDATE NO ACTION, PRIMARY KEY ("batchId", "period", "coverages"))`,
+    );
+  }
+
+  async down(q: QueryRunner): Promise<void> {
+    await q.query(`DROP TABLE "batch_gof"`);
+  }
+}

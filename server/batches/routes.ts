@@ -10,7 +10,8 @@ import { ApiError, idParam, notFound, validate } from '../errors';
 import type { RouteDeps } from '../deps';
 import './jobKind';
 import { consensusOf } from './consensus';
-import { checkPeriod, checkStatistic, gofOf, gofSummaryOf, parseCoverages, periodMatrix, statisticsCsv } from './gof';
+import { checkPeriod, checkStatistic, gofSummaryFrom, parseCoverages, periodMatrix, statisticsCsv } from './gof';
+import { gofStoreFor } from './gofStore';
 import { batchDetail, cancelBatch, createBatch, getBatch, listBatches, type LoadedBatch } from './service';
 
 /** Stored rows of finished batches, kept in memory for the views (results never change once done). */
@@ -34,6 +35,9 @@ export function batchesRouter(deps: RouteDeps): Router {
   const { dataSource, auth } = deps;
   const router = Router();
   const cache = new MatrixCache();
+  // The GOF of finished batches: computed once in a worker thread and kept (gofStore.ts). Made here so
+  // it hears when this app's batches finish.
+  const gof = gofStoreFor(dataSource);
 
   const loadBatch = (req: Request): LoadedBatch => {
     const { study } = currentStudy(req);
@@ -77,21 +81,23 @@ export function batchesRouter(deps: RouteDeps): Router {
     res.json({ batch: batchDetail(dataSource, getBatch(dataSource, batch.row.studyId, batch.row.id)!) });
   });
 
-  router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+  router.get('/:studyId/batches/:batchId/gof', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
     const period = checkPeriod(batch, req.query.period);
     const statistic = checkStatistic(batch, req.query.statistic);
     const coverages = parseCoverages(req.query.coverage);
     finished(batch);
-    res.json(gofOf(batch, matrixOf(batch, period), statistic, period, coverages));
+    const results = await gof.period(batch, period, coverages);
+    res.json(results.find((r) => r.gof.statistic === statistic.layout.statistic)!.gof);
   });
 
-  router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), (req, res) => {
+  router.get('/:studyId/batches/:batchId/gof/summary', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {
     const batch = loadBatch(req);
     const period = checkPeriod(batch, req.query.period);
     const coverages = parseCoverages(req.query.coverage);
     finished(batch);
-    res.json(gofSummaryOf(batch, matrixOf(batch, period), period, coverages));
+    const results = await gof.period(batch, period, coverages);
+    res.json(gofSummaryFrom(batch, results.map((r) => r.gof), period, coverages));
   });
 
   router.get('/:studyId/batches/:batchId/consensus', auth.requireUser, auth.requireStudyRole('read'), async (req, res) => {

@@ -4,9 +4,9 @@
  * "quoted" fields with "" for a quote; spaces around fields trimmed; blank lines skipped.
  * Follows RFC 4180 (Shafranovich 2005, Common Format and MIME Type for CSV Files) except that
  * quoted fields may not span lines, and that a field written by our downloads with a leading
- * apostrophe against formula injection (shared/csvCell.ts) is read without it.
+ * apostrophe against formula injection (shared/csvSafe.ts) is read without it.
  */
-import { restoreCell } from '../../shared/csvCell';
+import { restoreCell } from '../../shared/csvSafe';
 
 export interface CsvRow {
   /** Line number in the file, from 1. */

@@ -7,13 +7,13 @@
  *   `name@1`, `name@2`, ... (the missing marker for a missing value), then `present@1` ... when the
  *   study has changing composition;
  * - the fixed pairs as `sender,receiver,value,waves`.
- * Cells are neutralised against spreadsheet formula injection (csvCell in shared/csvCell.ts).
+ * Cells are neutralised against spreadsheet formula injection (shared/csvSafe.ts, as every CSV the product writes).
  */
-import { csvCell } from '../../shared/csvCell';
+import { csvLine } from '../../shared/csvSafe';
 import type { Covariate } from './entities';
 import { TIE_MISSING, TIE_PRESENT } from './parse';
 
-const line = (cells: string[]) => cells.map(csvCell).join(',');
+const line = (cells: string[]) => csvLine(cells);
 
 export function formatEdgeListCsv(actors: readonly string[], adjacency: Uint8Array, missingMarker = 'NA'): string {
   const n = actors.length;

@@ -3,8 +3,8 @@
  * EntitySchema in the feature's entities.ts (no decorators), add it to this list, and add a
  * migration that creates its table (see ./migrations.ts).
  */
-import { UserEntity } from '../auth/entities';
-import { BatchEntity, BatchResultEntity, BatchTieCountsEntity } from '../batches/entities';
+import { EndedSessionEntity, UserEntity } from '../auth/entities';
+import { BatchEntity, BatchGofEntity, BatchResultEntity, BatchTieCountsEntity } from '../batches/entities';
 import { ActorEntity, CovariateEntity, WaveEntity } from '../data/entities';
 import { InvitationEntity } from '../invitations/entities';
 import { lineupEntities } from '../lineups/entities';
@@ -32,6 +32,8 @@ export const entities = [
   FitEntity,
   ...reviewEntities,
   ...lineupEntities,
+  EndedSessionEntity,
+  BatchGofEntity,
   RefitEntity,
   RefitResultEntity,
 ];

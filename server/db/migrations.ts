@@ -11,16 +11,16 @@
  *    `name`: the database records applied migrations by name.
  * 4. tests/api/schema.test.ts fails while the entities and the migrations disagree.
  */
-import { Accounts1733100000001 } from '../auth/migration';
+import { Accounts1733100000001, Sessions1733100002200 } from '../auth/migration';
 import { StudyData1733100000002 } from '../data/migration';
 import { JobQueue1733100000500 } from '../jobs/migration';
-import { Batches1733100000900 } from '../batches/migration';
+import { BatchGof1733100002300, Batches1733100000900 } from '../batches/migration';
 import { Models1733100001000 } from '../models/migration';
 import { Review1733100001200 } from '../review/migration';
 import { FixedPairsAndPresence1733100001300 } from '../data/migrations/0003-FixedPairsAndPresence';
 import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
 import { Lineups1733100002000 } from '../lineups/migration';
-import { Refits1733100002100 } from '../refits/migration';
+import { Refits1733100002400 } from '../refits/migration';
 
 export const migrations = [
   Accounts1733100000001,
@@ -32,5 +32,7 @@ export const migrations = [
   FixedPairsAndPresence1733100001300,
   SignoffAcknowledgement1733100001900,
   Lineups1733100002000,
-  Refits1733100002100,
+  Sessions1733100002200,
+  BatchGof1733100002300,
+  Refits1733100002400,
 ];

@@ -1,7 +1,6 @@
 /**
- * /api/health: is the server up, which version, and whether it mounts the development outbox
- * (`devOutbox`; the same condition as server/app.ts uses to mount /api/dev). Checks the database with
- * a trivial query.
+ * /api/health: is the server up, which version, and whether the development outbox is mounted
+ * (devOutbox; the client shows its tab only then). Checks the database with a trivial query.
  */
 import { Router } from 'express';
 import type { RouteDeps } from '../deps';
@@ -10,7 +9,7 @@ export function healthRouter(deps: RouteDeps): Router {
   const router = Router();
   router.get('/', async (_req, res) => {
     await deps.dataSource.query('SELECT 1');
-    res.json({ ok: true, version: deps.config.version, devOutbox: !deps.config.isProduction });
+    res.json({ ok: true, version: deps.config.version, devOutbox: deps.config.devOutbox && !deps.config.isProduction });
   });
   return router;
 }

@@ -5,6 +5,7 @@
  */
 import { Router, type Request } from 'express';
 import { acceptInvitationBodySchema, type AcceptInvitationBody, type InvitationPreview } from '../../shared/api';
+import { markWrongPassword } from '../auth/guessLimits';
 import { hashInvitationToken } from './tokens';
 import { hashPassword, verifyPassword } from '../auth/passwords';
 import { InvitationEntity, type Invitation } from './entities';
@@ -53,11 +54,18 @@ export function invitationsRouter(deps: RouteDeps): Router {
     res.json(preview);
   });
 
-  router.post('/:token/accept', validate(acceptInvitationBodySchema), async (req, res) => {
+  // Guessing an existing account's password through an invitation counts like a wrong sign-in.
+  const acceptGuesses = auth.guessLimits.guard(async (req) => {
+    const token = String(req.params.token ?? '');
+    if (!/^[A-Za-z0-9_-]{20,100}$/.test(token)) return null;
+    return (await invitations.findOneBy({ tokenHash: hashInvitationToken(token) }))?.email ?? null;
+  });
+  router.post('/:token/accept', validate(acceptInvitationBodySchema), ...acceptGuesses, async (req, res) => {
     const body = req.body as AcceptInvitationBody;
     const invitation = await usableInvitation(req);
     const existing = await users.findOneBy({ email: invitation.email });
     if (existing && !(await verifyPassword(existing.passwordHash, body.password))) {
+      markWrongPassword(res);
       throw new ApiError(
         401,
         'invalid_credentials',

@@ -2,26 +2,14 @@
  * CSV of a re-fit study (RFC 4180, CRLF line ends): the summary (one row per group and parameter) and
  * every re-fit (one row per re-fit and parameter). Text cells that a spreadsheet would read as a
  * formula (starting with =, +, -, @, tab or carriage return) get a leading apostrophe; numbers are
- * written as numbers. (shared/csvSafe.ts is not on main yet, so this small helper does it here.)
+ * written as numbers (the shared helper shared/csvSafe.ts).
  */
+import { csvCell, type CsvValue } from '../../shared/csvSafe';
 import type { RefitResults } from '../../shared/refits';
 import type { StoredRefitModel } from './context';
 import type { RefitRow } from './summary';
 
-/** A text cell neutralised against formula injection (common practice, OWASP "CSV injection"), then quoted when needed. */
-export function csvText(value: string): string {
-  const s = /^[=+\-@\t\r]/.test(value) ? `'${value}` : value;
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-function cell(value: string | number | boolean | null | undefined): string {
-  if (value === null || value === undefined) return '';
-  if (typeof value === 'number') return Number.isFinite(value) ? String(value) : '';
-  if (typeof value === 'boolean') return value ? '1' : '0';
-  return csvText(value);
-}
-
-const line = (values: (string | number | boolean | null | undefined)[]) => values.map(cell).join(',');
+const line = (values: (CsvValue | boolean)[]) => values.map((v) => csvCell(typeof v === 'boolean' ? (v ? 1 : 0) : v)).join(',');
 
 export function refitSummaryCsv(results: RefitResults): string {
   const models = results.refit.models;

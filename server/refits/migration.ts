@@ -1,11 +1,11 @@
 /**
  * Migration: re-fit studies (refits, refit_results). Listed in server/db/migrations.ts, after the
- * lineups.
+ * stored GOF views.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
 
-export class Refits1733100002100 implements MigrationInterface {
-  name = 'Refits1733100002100';
+export class Refits1733100002400 implements MigrationInterface {
+  name = 'Refits1733100002400';
 
   async up(q: QueryRunner): Promise<void> {
     await q.query(

@@ -1,18 +1,12 @@
 /**
  * CSV exports of a fit report's numbers (RFC 4180: comma-separated, fields with commas, quotes or
- * line breaks quoted, CRLF line ends): the goodness-of-fit table (one row per statistic, period and
- * component, with the newest sign-off and any acknowledged concerns and reason on every row) and the
- * estimates table (one row per parameter).
+ * line breaks quoted, CRLF line ends; text that would start a formula neutralised by
+ * shared/csvSafe.ts): the goodness-of-fit table (one row per statistic, period and component, with
+ * the newest sign-off and any acknowledged concerns and reason on every row) and the estimates table
+ * (one row per parameter).
  */
+import { csvLine as line } from '../../shared/csvSafe';
 import type { ReportJson } from '../../shared/review';
-
-function field(value: string | number | null | undefined): string {
-  if (value === null || value === undefined) return '';
-  const s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : value;
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-const line = (values: (string | number | null | undefined)[]) => values.map(field).join(',');
 
 export function gofCsv(report: ReportJson): string {
   const coverages = report.statistics[0]?.bands.map((b) => b.coverage).sort((a, b) => a - b) ?? [];

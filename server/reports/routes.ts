@@ -83,12 +83,14 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
     res.status(201).json({ signoff });
   });
 
-  router.get(`${B}/report.json`, ...member('read'), (req, res) => {
+  router.get(`${B}/report.json`, ...member('read'), async (req, res) => {
+    await gof.prepare(dataSource, batchOf(req));
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req), refitOf(dataSource, req));
     res.set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, 'json')}"`).json(report);
   });
 
-  router.get(`${B}/report.csv`, ...member('read'), (req, res) => {
+  router.get(`${B}/report.csv`, ...member('read'), async (req, res) => {
+    await gof.prepare(dataSource, batchOf(req));
     const table = req.query.table === undefined || req.query.table === '' ? 'gof' : String(req.query.table);
     if (table !== 'gof' && table !== 'estimates') throw badRequest('The table is "gof" (envelopes, p-values and verdicts) or "estimates".');
     const report = buildReport(dataSource, gof, batchOf(req), []);
@@ -100,6 +102,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
   });
 
   router.get(`${B}/report.pdf`, ...member('read'), async (req, res) => {
+    await gof.prepare(dataSource, batchOf(req));
     const report = buildReport(dataSource, gof, batchOf(req), compareIds(req), refitOf(dataSource, req));
     const pdf = await reportPdf(report);
     res

@@ -1,30 +1,15 @@
 /**
  * The goodness-of-fit numbers of a finished batch for the board's charts, the comparison and the
- * report, computed by the batches module's own functions (periodMatrix, statisticSample, gofOf) from
- * the stored rows, plus the simulated standard deviation per component (for standardised charts).
- * Cached per batch: a finished batch's results never change.
+ * report: the batches module's stored GOF (server/batches/gofStore.ts, computed once in a worker
+ * thread when the batch finished), plus the simulated standard deviation per component (for
+ * standardised charts). Cached per batch: a finished batch's results never change.
  */
 import type { DataSource } from 'typeorm';
-import { DEFAULT_COVERAGES } from '../../shared/batches';
 import { chartScaleOf, type EnvelopeChartDto } from '../../shared/review';
-import { layoutOffsets } from '../batches/layout';
-import { gofOf, periodMatrix, statisticSample } from '../batches/gof';
+import { gofStoreFor } from '../batches/gofStore';
 import type { LoadedBatch } from '../batches/service';
 
-/** Sample standard deviation (n - 1) of each column of a rows x cols matrix. */
-export function columnSd(sample: { rows: number; cols: number; data: Float64Array }): number[] {
-  const { rows, cols, data } = sample;
-  const out: number[] = [];
-  for (let k = 0; k < cols; k++) {
-    let mean = 0;
-    for (let s = 0; s < rows; s++) mean += data[s * cols + k];
-    mean /= rows;
-    let ss = 0;
-    for (let s = 0; s < rows; s++) ss += (data[s * cols + k] - mean) ** 2;
-    out.push(rows > 1 ? Math.sqrt(ss / (rows - 1)) : 0);
-  }
-  return out;
-}
+export { columnSd } from '../batches/gofCompute';
 
 export class GofCache {
   private readonly entries = new Map<number, EnvelopeChartDto[]>();
@@ -34,13 +19,12 @@ export class GofCache {
   all(dataSource: DataSource, batch: LoadedBatch): EnvelopeChartDto[] {
     const hit = this.entries.get(batch.row.id);
     if (hit) return hit;
-    const { offsets } = layoutOffsets(batch.layout);
+    const store = gofStoreFor(dataSource);
     const out: EnvelopeChartDto[] = [];
     for (const period of batch.summary.periods) {
-      const matrix = periodMatrix(dataSource, batch, period);
-      for (const layout of batch.layout) {
-        const offset = offsets.get(layout.statistic)!;
-        const g = gofOf(batch, matrix, { layout, offset }, period, [...DEFAULT_COVERAGES]);
+      // Stored when the batch finished (computed in the GOF worker); computed here only for a batch
+      // whose GOF was never stored and whose reader did not call prepare() first.
+      for (const { gof: g, sd } of store.storedOrComputeHere(batch, period)) {
         out.push({
           batchId: batch.row.id,
           statistic: g.statistic,
@@ -49,7 +33,7 @@ export class GofCache {
           components: g.components,
           observed: g.observed,
           mean: g.mean,
-          sd: columnSd(statisticSample(matrix, offset, layout.components.length)),
+          sd,
           bands: g.bands.map((b) => ({ coverage: b.coverage, lower: b.lower, upper: b.upper, outside: b.outside })),
           pValue: g.test.pValue,
           pValueSimulatedOnly: g.test.pValueSimulatedOnly,
@@ -65,6 +49,11 @@ export class GofCache {
     if (this.entries.size >= this.limit) this.entries.delete(this.entries.keys().next().value!);
     this.entries.set(batch.row.id, out);
     return out;
+  }
+
+  /** Makes sure a done batch's GOF is stored, computing what is missing in the GOF worker thread. */
+  async prepare(dataSource: DataSource, batch: LoadedBatch): Promise<void> {
+    if (batch.summary.state === 'done' && !this.entries.has(batch.row.id)) await gofStoreFor(dataSource).ensure(batch);
   }
 
   one(dataSource: DataSource, batch: LoadedBatch, statistic: string, period: number): EnvelopeChartDto | undefined {

@@ -60,11 +60,12 @@ export function reviewRouter(deps: RouteDeps): ReviewRouter {
     res.json(boardOf(dataSource, batchOf(req)));
   });
 
-  router.get(`${B}/board/chart`, ...member('read'), (req, res) => {
+  router.get(`${B}/board/chart`, ...member('read'), async (req, res) => {
     const batch = batchOf(req);
     const card = cardQuery(req);
     checkCard(batch, card.statistic, card.period);
     requireDone(batch);
+    await gof.prepare(dataSource, batch);
     res.json(gof.one(dataSource, batch, card.statistic, card.period));
   });
 

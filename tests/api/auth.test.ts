@@ -119,7 +119,7 @@ describe('password change', () => {
       const short = await request(t2.app).post('/api/auth/password').set(bearer(token)).send({ currentPassword: 'wavefit-demo-1', newPassword: 'short' });
       expect(short.status).toBe(400);
       expect(short.body.error.details.fields.newPassword[0]).toMatch(/at least 10/);
-      await request(t2.app).post('/api/auth/password').set(bearer(token)).send({ currentPassword: 'wavefit-demo-1', newPassword: 'a-new-password-42' }).expect(204);
+      await request(t2.app).post('/api/auth/password').set(bearer(token)).send({ currentPassword: 'wavefit-demo-1', newPassword: 'a-new-password-42' }).expect(200);
       await request(t2.app).post('/api/auth/login').send({ email: REVIEWER, password: 'wavefit-demo-1' }).expect(401);
       await request(t2.app).post('/api/auth/login').send({ email: REVIEWER, password: 'a-new-password-42' }).expect(200);
     } finally {

@@ -11,7 +11,7 @@
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { neutraliseCell } from '../../shared/csvCell';
+import { neutraliseFormula as neutraliseCell } from '../../shared/csvSafe';
 import type { DataUploadBody } from '../../shared/data';
 import { LEAD, REVIEWER, STATS, bearer, makeTestApp, type TestApp } from './helpers';
 

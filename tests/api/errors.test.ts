@@ -74,7 +74,7 @@ describe('malformed requests', () => {
 describe('unexpected failures', () => {
   it('answer 500 with a plain message and no stack trace, and log the error', async () => {
     const broken = await makeTestApp();
-    const valid = jwt.sign({ sub: '1' }, broken.config.secret, { algorithm: 'HS256', expiresIn: 60 });
+    const valid = jwt.sign({ sub: '1', ep: 0, jti: 'b'.repeat(32) }, broken.config.secret, { algorithm: 'HS256', expiresIn: 60 });
     await broken.dataSource.destroy(); // every query now throws
     const res = await request(broken.app).get('/api/studies').set(bearer(valid));
     expect(res.status).toBe(500);
@@ -88,12 +88,12 @@ describe('unexpected failures', () => {
 
   it('health answers with the version and whether the dev outbox is mounted', async () => {
     const res = await request(t.app).get('/api/health');
-    expect(res.body).toEqual({ ok: true, version: t.config.version, devOutbox: true });
+    expect(res.body).toEqual({ ok: true, version: t.config.version, devOutbox: false });
   });
 
-  it('the dev outbox is readable in development and absent in production, and health says so', async () => {
-    await request(t.app).get('/api/dev/outbox').expect(200);
-    const prod = await makeTestApp({ config: { isProduction: true, nodeEnv: 'production' } });
+  it('the dev outbox is absent unless asked for, and absent in production even when asked for', async () => {
+    await request(t.app).get('/api/dev/outbox').expect(404);
+    const prod = await makeTestApp({ config: { isProduction: true, nodeEnv: 'production', devOutbox: true } });
     const res = await request(prod.app).get('/api/dev/outbox');
     expect(res.status).toBe(404);
     expect((await request(prod.app).get('/api/health')).body.devOutbox).toBe(false);

@@ -64,7 +64,8 @@ export async function startServer(distDir: string = DIST): Promise<WavefitServer
   });
   const { port } = http.address() as AddressInfo;
   const baseUrl = `http://127.0.0.1:${port}`;
-  const config = testConfig({ dbPath, publicUrl: baseUrl, distDir });
+  // A development-like server: the admins' outbox is mounted (as with WAVEFIT_DEV_OUTBOX=1).
+  const config = testConfig({ dbPath, publicUrl: baseUrl, distDir, devOutbox: true });
   const dataSource = await openDataSource({ database: dbPath });
   const seed = await seedDemo(dataSource, { passwordHash: config.passwordHash });
   const mailer = createOutboxMailer({ from: config.mailFrom });
