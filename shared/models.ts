@@ -31,7 +31,7 @@ import { EFFECT_IDS, effectInfo, type EffectId } from './effects';
 import { PLAIN_LINE_MESSAGE, PLAIN_TEXT_MESSAGE, isPlainLine, isPlainText } from './plainText';
 
 export const MAX_MODEL_EFFECTS = 40;
-export const DEFAULT_PHASE3_RUNS = 500;
+export const DEFAULT_PHASE3_RUNS = 1000;
 export const MIN_PHASE3_RUNS = 50;
 export const MAX_PHASE3_RUNS = 5000;
 /** Largest rate accepted as a value (expected opportunities per actor and period). */
@@ -239,7 +239,7 @@ export interface ModelDetail extends ModelSummary {
 export interface FitProgress {
   /** 0 = waiting to start, 1..3 the phase. */
   phase: 0 | 1 | 2 | 3;
-  /** Phase 2 sub-phase 1..4, else 0. */
+  /** Phase 2 sub-phase 1..4; in Phase 3 the continuation round (2, 3, ...), 0 in the first round. */
   subphase: number;
   /** Runs (Phases 1 and 3) or iterations (Phase 2) done in the current phase or sub-phase. */
   iteration: number;
@@ -282,6 +282,13 @@ export interface FitResults {
   /** Periods simulated in all phases. */
   simulatedPeriods: number;
   phase2Iterations: number[];
+  /**
+   * Rounds the fit took: 1, or more when it continued automatically from its estimates (each round one
+   * Phase 3 check); absent in results stored before rounds existed.
+   */
+  rounds?: number;
+  /** The round budget the fit had. */
+  roundBudget?: number;
   seconds: number;
   warnings: string[];
   /** Observed and Phase 3 mean statistics of the estimated parameters. */

@@ -21,7 +21,7 @@ import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 import { CorrelationGrid } from './CorrelationGrid';
 import { ScoreTestsSection } from './ScoreTestsSection';
-import { convergenceWord, duration, fitStateWords, fixed, progressWords, tauHigh, tHigh } from './format';
+import { convergenceWord, duration, fitStateWords, fixed, progressWords, roundsWords, tauHigh, tHigh } from './format';
 import { parseId } from '../api/params';
 import { useFit, useModel, useModelMutations } from './queries';
 
@@ -241,6 +241,11 @@ export function FitScreen() {
                     <Figure label="time taken" value={duration(r.seconds)} />
                   </View>
                   <Text variant="caption">Phase 2 iterations per sub-phase: {r.phase2Iterations.join(', ')}.</Text>
+                  {r.rounds != null ? (
+                    <Text variant="caption" testID="fit-rounds">
+                      {roundsWords(r.rounds, r.roundBudget ?? null, r.converged)}
+                    </Text>
+                  ) : null}
                   {r.warnings.map((w, i) => (
                     <Banner key={i} tone="caution">
                       {w}

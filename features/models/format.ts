@@ -45,7 +45,22 @@ export function progressWords(p: FitProgress): string {
   if (p.phase === 0) return PHASE_NAMES[0];
   const head = PHASE_NAMES[p.phase];
   if (p.phase === 2) return `${head} · sub-phase ${p.subphase} of 4 · iteration ${p.iteration} (at most ${p.planned})`;
+  if (p.phase === 3 && p.subphase > 1) return `${head} · continuing from the estimates, round ${p.subphase} · run ${p.iteration} of ${p.planned}`;
   return `${head} · run ${p.iteration} of ${p.planned}`;
+}
+
+/** How many rounds a fit took, in words (each round ends with a Phase 3 convergence check). */
+export function roundsWords(rounds: number, budget: number | null, converged: boolean): string {
+  const took = rounds === 1 ? 'This fit took 1 round' : `This fit took ${rounds} rounds`;
+  const of = budget != null ? ` of the ${budget} allowed` : '';
+  const how =
+    rounds === 1
+      ? converged
+        ? ': it converged at the first check.'
+        : '.'
+      : `: the first check missed the thresholds, so it continued ${rounds - 1} time${rounds === 2 ? '' : 's'} from its own estimates (a Newton step from the last check, then a new Phase 3)` +
+        (converged ? ' and then converged.' : ' and still did not converge.');
+  return `${took}${of}${how}`;
 }
 
 export function duration(seconds: number): string {

@@ -95,7 +95,7 @@ export async function seedDemoResults(dataSource: DataSource, studyId: number): 
     let fitId = 0;
     let fitState = 'failed';
     for (let attempt = 0; attempt < 3 && fitState !== 'done'; attempt++) {
-      fitId = await startFit(dataSource, getModelRow(dataSource, studyId, modelId)!, stats.id, startFitBodySchema.parse({ seed: fitSeed + attempt, phase3Runs: 200 }));
+      fitId = await startFit(dataSource, getModelRow(dataSource, studyId, modelId)!, stats.id, startFitBodySchema.parse({ seed: fitSeed + attempt }));
       const fitJob = (db.prepare(`SELECT "jobId" FROM "fits" WHERE "id" = ?`).get(fitId) as { jobId: number }).jobId;
       fitState = await queue.whenSettled(fitJob);
       // A failed demo attempt is not worth keeping in the demo study.

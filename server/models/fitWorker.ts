@@ -10,7 +10,7 @@ import type { ChunkContext } from '../jobs/registry';
 import { fitSaom } from '../engine/estimate';
 import type { FitResults } from '../../shared/models';
 import { paramPlans, periodInputs, ratePlans, effectKey, rateKey, sortedRates } from './modelData';
-import { fitWorkPlan, SUBPHASE_EXTRA, unitsAt } from './progress';
+import { FIT_ROUND_BUDGET, fitWorkPlan, SUBPHASE_EXTRA, unitsAt } from './progress';
 import { resultsFromFit } from './results';
 import type { FitContext } from './context';
 
@@ -38,6 +38,7 @@ export function runFit(context: FitContext, ctx: ChunkContext): FitResults {
       phase1Runs: plan.phase1Runs > 0 ? plan.phase1Runs : undefined,
       subphaseExtra: SUBPHASE_EXTRA,
       phase3Runs: context.phase3Runs,
+      maxRounds: FIT_ROUND_BUDGET,
       ...(context.initialDerivative ? { initialDerivative: context.initialDerivative } : {}),
       log: (line) => ctx.log(line),
       onProgress: (pr) => {
@@ -51,7 +52,7 @@ export function runFit(context: FitContext, ctx: ChunkContext): FitResults {
   );
   const seconds = (performance.now() - started) / 1000;
   ctx.log(`Estimation finished in ${seconds.toFixed(1)} s after ${fit.simulatedPeriods} simulated periods.`);
-  return resultsFromFit(spec, fit, seconds);
+  return resultsFromFit(spec, fit, seconds, FIT_ROUND_BUDGET);
 }
 
 /** The queue's entry point: one chunk is the whole fit. */

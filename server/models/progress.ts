@@ -5,6 +5,7 @@
  * (finite differences), Phase 2 one per iteration; a sub-phase that ends early jumps to the next offset.
  */
 import type { FitProgress } from '../../shared/models';
+import { DEFAULT_PHASE3_DERIVATIVE_RUNS, DEFAULT_ROUND_BUDGET, subphaseRule } from '../engine/estimate';
 
 /** Phase 2 iterations allowed beyond a sub-phase's minimum (METHODS.md 4.3). */
 export const SUBPHASE_EXTRA = 200;
@@ -30,10 +31,13 @@ export function defaultPhase1Runs(p: number): number {
   return 10 + 3 * p;
 }
 
-/** Minimum length of Phase 2 sub-phase k: 2^(4(k-1)/3) (7 + p) (METHODS.md 4.3, from memory of Snijders 2001). */
+/** Minimum length of Phase 2 sub-phase k: 2^(4(k-1)/3) (7 + p) (METHODS.md 4.3, Snijders 2001). */
 export function subphaseMinimum(k: number, p: number): number {
-  return Math.ceil(Math.pow(2, (4 * (k - 1)) / 3) * (7 + p));
+  return subphaseRule(k, p).minLength;
 }
+
+/** Rounds a product fit may take: the first and up to two continuations from its estimates. */
+export const FIT_ROUND_BUDGET = DEFAULT_ROUND_BUDGET;
 
 export function fitWorkPlan(p: number, phase3Runs: number, skipPhase1: boolean): FitWorkPlan {
   if (!Number.isInteger(p) || p < 1) throw new Error(`fit: the number of estimated parameters must be at least 1, got ${String(p)}`);
@@ -46,7 +50,11 @@ export function fitWorkPlan(p: number, phase3Runs: number, skipPhase1: boolean):
   };
   if (phase1Runs > 0) push(1, 0, phase1Runs, p + 1);
   for (let k = 1; k <= SUBPHASES; k++) push(2, k, subphaseMinimum(k, p) + SUBPHASE_EXTRA, 1);
-  push(3, 0, phase3Runs, p + 1);
+  // Phase 3 of round 1 (sub-phase 0) and of each possible continuation round r (sub-phase r): every run
+  // is one simulation, and the first ones p more for the derivatives (counted as one weight per run).
+  const derivativeRuns = Math.min(phase3Runs, DEFAULT_PHASE3_DERIVATIVE_RUNS);
+  const weight = Math.max(1, Math.round((phase3Runs + p * derivativeRuns) / phase3Runs));
+  for (let r = 1; r <= FIT_ROUND_BUDGET; r++) push(3, r === 1 ? 0 : r, phase3Runs, weight);
   return { p, phase1Runs, stages, total: offset };
 }
 

@@ -39,7 +39,7 @@ function parameterShells(spec: StoredSpec): Omit<FitParameter, 'value' | 'se' | 
   ];
 }
 
-export function resultsFromFit(spec: StoredSpec, fit: SaomFit, seconds: number): FitResults {
+export function resultsFromFit(spec: StoredSpec, fit: SaomFit, seconds: number, roundBudget = 1): FitResults {
   const shells = parameterShells(spec);
   if (shells.length !== fit.parameters.length) {
     throw new Error(`fit: ${fit.parameters.length} fitted parameters for a model with ${shells.length}`);
@@ -72,6 +72,8 @@ export function resultsFromFit(spec: StoredSpec, fit: SaomFit, seconds: number):
     derivative: raw.derivative.every((row) => row.every(Number.isFinite)) ? raw.derivative : null,
     simulatedPeriods: raw.simulatedPeriods,
     phase2Iterations: raw.phase2Iterations,
+    rounds: raw.rounds.length,
+    roundBudget,
     seconds,
     warnings: fit.warnings,
     target: raw.target,

@@ -274,6 +274,12 @@ describe('fits', () => {
     expect(r.tauMax).not.toBeNull();
     expect(r.simulatedPeriods).toBeGreaterThan(1000);
     expect(r.phase2Iterations).toHaveLength(4);
+    // The fit continues automatically from its estimates up to the stated budget of rounds and says how
+    // many it took; it stops at the first round that meets the thresholds.
+    expect(r.roundBudget).toBe(3);
+    expect(r.rounds).toBeGreaterThanOrEqual(1);
+    expect(r.rounds).toBeLessThanOrEqual(3);
+    if (r.rounds! < 3) expect(r.converged).toBe(true);
     expect(r.seconds).toBeGreaterThan(0);
     expect(fit.log.join('\n')).toMatch(/Phase 1: .*Phase 2 sub-phase 1.*Phase 3: .*done/s);
     expect(fit.progress).toMatchObject({ phase: 3, fraction: 1 });

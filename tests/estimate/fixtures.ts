@@ -20,7 +20,17 @@ export interface SimulatedPanel {
   waves: Uint8Array[];
 }
 
-export function simulatedPanel(n: number, seed: number, options: { waves?: number; rate?: number; beta?: number[] } = {}): SimulatedPanel {
+export interface PanelOptions {
+  waves?: number;
+  rate?: number;
+  beta?: number[];
+  /** The triadic effect (default transitive triplets). */
+  triad?: 'transitive_triplets' | 'three_cycles';
+  /** The covariate effect on years of service (default similarity). */
+  covariateEffect?: 'covariate_similarity' | 'covariate_ego' | 'covariate_alter';
+}
+
+export function simulatedPanel(n: number, seed: number, options: PanelOptions = {}): SimulatedPanel {
   const beta = options.beta ?? TRUE_BETA;
   const rate = options.rate ?? 4;
   const waveCount = options.waves ?? 3;
@@ -28,7 +38,12 @@ export function simulatedPanel(n: number, seed: number, options: { waves?: numbe
   const years = new Float64Array(n);
   for (let i = 0; i < n; i++) years[i] = 1 + rng.nextInt(5);
   const effects = buildEffects(
-    [{ id: 'density' }, { id: 'reciprocity' }, { id: 'transitive_triplets' }, { id: 'covariate_similarity', covariate: 'years' }],
+    [
+      { id: 'density' },
+      { id: 'reciprocity' },
+      { id: options.triad ?? 'transitive_triplets' },
+      { id: options.covariateEffect ?? 'covariate_similarity', covariate: 'years' },
+    ],
     { years },
   );
   const first = new Uint8Array(n * n);

@@ -51,6 +51,8 @@ export interface SaomFit {
   converged: boolean;
   simulatedPeriods: number;
   phase2Iterations: number[];
+  /** Phase 3 checks run: 1, or more when the fit continued automatically from its estimates. */
+  rounds: number;
   warnings: string[];
   /** The raw estimator output, for tests and the bench. */
   raw: EstimationResult;
@@ -83,6 +85,7 @@ export function fitSaom(input: SaomProblemInput, options: FitOptions = {}): Saom
     converged: isConverged(result),
     simulatedPeriods: result.simulatedPeriods,
     phase2Iterations: result.phase2Iterations,
+    rounds: result.rounds.length,
     warnings: [...built.notes, ...result.warnings],
     raw: result,
   };

@@ -15,6 +15,32 @@ export const PHASE_2 = 2;
 
 export const PHASE_3 = 3;
 
+/** Stream key of the Phase 3 of continuation round r >= 2 (round 1 uses PHASE_3). */
+export function phase3Key(round: number): number {
+  return round <= 1 ? PHASE_3 : 100 + round;
+}
+
+/**
+ * Phase 3 runs that also get finite-difference derivatives (p more simulations each), by default: the
+ * derivative matrix needs far fewer runs than the convergence check, whose Monte Carlo error is
+ * 1/sqrt(N3) in t-ratio units (our choice; the matrix is pooled over continuation rounds).
+ */
+export const DEFAULT_PHASE3_DERIVATIVE_RUNS = 100;
+
+/**
+ * Rounds a fit may take by default in the product: the first (Phases 1-3), then up to two
+ * continuations from the last estimates while the convergence thresholds are missed.
+ */
+export const DEFAULT_ROUND_BUDGET = 3;
+
+export interface RoundSummary {
+  /** Estimates checked in this round's Phase 3. */
+  theta: number[];
+  maxAbsT: number;
+  tauMax: number;
+  converged: boolean;
+}
+
 export type ParameterKind = 'rate' | 'objective';
 
 /**
@@ -75,6 +101,13 @@ export interface EstimatorOptions {
   subphaseExtra?: number;
   /** Phase 3 runs (default 500). */
   phase3Runs?: number;
+  /** Phase 3 runs that also get finite-difference derivatives (default min(N3, 100)). */
+  phase3DerivativeRuns?: number;
+  /**
+   * Budget of rounds (default 1): while a round's Phase 3 misses the convergence thresholds and the
+   * budget allows, take a Newton step from its estimates and check again with a new Phase 3.
+   */
+  maxRounds?: number;
   /** Finite-difference step: epsilon for objective parameters, epsilon * lambda for rates (default 0.1). */
   epsilon?: number;
   /** |theta| beyond which an objective parameter counts as diverged (default 40). */
@@ -110,6 +143,8 @@ export interface EstimationResult {
   target: number[];
   /** Phase 2 iterations per sub-phase. */
   phase2Iterations: number[];
+  /** One entry per Phase 3 run (the first round and any continuations); the last is the result. */
+  rounds: RoundSummary[];
   /** Calls of the simulator and periods simulated in all. */
   simulatorCalls: number;
   simulatedPeriods: number;

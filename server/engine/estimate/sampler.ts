@@ -30,6 +30,17 @@ export interface MomentSample {
   d: Matrix;
   /** Monte Carlo standard errors of the entries of d. */
   se: Matrix;
+  /** Sums of the squared per-run difference quotients (for pooling over several samples). */
+  sumSquares: Matrix;
+  /** Runs that had finite differences (the first ones). */
+  derivativeRuns: number;
+}
+
+export interface SampleOptions {
+  /** Finite differences on the first this many runs only (default all). */
+  derivativeRuns?: number;
+  progressPhase?: 1 | 3;
+  progressSubphase?: number;
 }
 
 export interface SamplerContext {
@@ -64,15 +75,21 @@ export function createSampler(problem: MomentProblem, ctx: SamplerContext) {
     },
   };
   const stepSize = (theta: number[], k: number): number => (kinds[k] === 'rate' ? ctx.epsilon * theta[k] : ctx.epsilon);
-  /** N runs at theta with finite differences on common random numbers (METHODS 4.2.1). */
-  const sample = (theta: number[], phase: 1 | 3, runs: number): MomentSample => {
+  /**
+   * N runs at theta (streams keyed by `phase`) with finite differences on common random numbers
+   * (METHODS 4.2.1) on the first `derivativeRuns` of them.
+   */
+  const sample = (theta: number[], phase: number, runs: number, options: SampleOptions = {}): MomentSample => {
     const zs: number[][] = [];
     const d = zeros(p);
     const d2 = zeros(p);
+    const withD = Math.min(runs, options.derivativeRuns ?? runs);
+    const progressPhase = options.progressPhase ?? (phase === 1 ? 1 : 3);
+    const progressSubphase = options.progressSubphase ?? 0;
     for (let s = 0; s < runs; s++) {
       const z0 = runner.run(theta, phase, s);
       zs.push(z0);
-      for (let l = 0; l < p; l++) {
+      if (s < withD) for (let l = 0; l < p; l++) {
         const h = stepSize(theta, l);
         const shifted = theta.slice();
         shifted[l] += h;
@@ -83,19 +100,19 @@ export function createSampler(problem: MomentProblem, ctx: SamplerContext) {
           d2[k][l] += q * q;
         }
       }
-      ctx.progress({ phase, subphase: 0, iteration: s + 1, planned: runs, theta: theta.slice() });
+      ctx.progress({ phase: progressPhase, subphase: progressSubphase, iteration: s + 1, planned: runs, theta: theta.slice() });
     }
     // Mean and its Monte Carlo standard error per entry.
     const se = zeros(p);
     for (let k = 0; k < p; k++) {
       for (let l = 0; l < p; l++) {
-        const mean = d[k][l] / runs;
-        const variance = Math.max(0, (d2[k][l] - runs * mean * mean) / (runs - 1));
+        const mean = d[k][l] / withD;
+        const variance = withD > 1 ? Math.max(0, (d2[k][l] - withD * mean * mean) / (withD - 1)) : NaN;
         d[k][l] = mean;
-        se[k][l] = Math.sqrt(variance / runs);
+        se[k][l] = Math.sqrt(variance / withD);
       }
     }
-    return { zs, d, se };
+    return { zs, d, se, sumSquares: d2, derivativeRuns: withD };
   };
   return { runner, sample };
 }
