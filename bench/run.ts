@@ -3,6 +3,7 @@
  * To add a section, export a BenchSection[] from a file in bench/ and append it to SECTIONS.
  */
 import { batchSections } from './batches';
+import { distributedSections } from './distributed';
 import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { exploreSections } from './explore';
@@ -10,7 +11,7 @@ import { gofLoadSections } from './gofLoad';
 import { refitSections } from './refits';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections, ...refitSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...distributedSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections, ...refitSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

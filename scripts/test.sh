@@ -1,6 +1,8 @@
 #!/usr/bin/env bash
 # Runs every Wavefit test on a fresh machine or a warm one:
-#  1. installs what the tests need from Debian (chromium, networkx, scipy, poppler) when missing,
+#  1. installs what the tests need from Debian (chromium, networkx, scipy, poppler, redis-server,
+#     postgresql) when missing; the tests start private Redis and PostgreSQL servers on loopback
+#     ports and stop them (the packages' own services are not used),
 #  2. installs the npm packages when missing or stale,
 #  3. builds the web app (dist/) that the browser tests drive,
 #  4. type-checks, then runs all vitest suites (engine, API, browser),
@@ -14,6 +16,8 @@ need=()
 /usr/bin/python3 -c 'import networkx' 2>/dev/null || need+=(python3-networkx)
 /usr/bin/python3 -c 'import scipy, numpy' 2>/dev/null || need+=(python3-scipy python3-numpy)
 command -v pdftoppm >/dev/null 2>&1 || need+=(poppler-utils)
+[ -x /usr/bin/redis-server ] || need+=(redis-server)
+ls /usr/lib/postgresql/*/bin/pg_ctl >/dev/null 2>&1 || need+=(postgresql)
 if [ ${#need[@]} -gt 0 ]; then
   echo "test: installing Debian packages: ${need[*]}"
   SUDO=""; [ "$(id -u)" = 0 ] || SUDO="sudo"

@@ -71,9 +71,10 @@ async function shouldSeed(config: Config, countUsers: () => Promise<number>): Pr
 }
 
 export async function start(config: Config = loadConfig()): Promise<Server> {
-  const dataSource = await openDataSource({ database: config.dbPath });
+  const dataSource = await openDataSource({ database: config.dbPath, postgresUrl: config.postgresUrl ?? undefined });
   if (await shouldSeed(config, () => dataSource.getRepository(UserEntity).count())) {
-    console.log(describeSeed(await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: true })));
+    // The demo's fits and batches are jobs, which need SQLite for now.
+    console.log(describeSeed(await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: !config.postgresUrl })));
   }
   const mailer = createMailer(config);
   if (mailer.kind === 'outbox') {
@@ -86,15 +87,18 @@ export async function start(config: Config = loadConfig()): Promise<Server> {
     );
   }
   const app = createApp({ dataSource, mailer, config });
-  // Resumes simulation batches and fits left unfinished by a stop or a crash.
-  await startJobQueue(dataSource, { log: (line) => console.log(line) });
+  // Resumes simulation batches and fits left unfinished by a stop or a crash. With REDIS_URL the
+  // chunks go to `npm run worker` processes through BullMQ (server/jobs/remote/); else worker threads.
+  if (config.postgresUrl) console.log('Jobs: not available on PostgreSQL yet (batches, fits and review need SQLite); accounts, studies and data work.');
+  else await startJobQueue(dataSource, { log: (line) => console.log(line) });
+  console.log(config.redisUrl ? `Jobs: chunks go to remote workers through Redis (${config.redisUrl.replace(/\/\/[^@]*@/, '//***@')}); start them with npm run worker.` : 'Jobs: computed by worker threads of this process.');
   serveWebApp(app, config.distDir);
   const server = app.listen(config.port);
   await new Promise<void>((resolve, reject) => {
     server.once('listening', resolve);
     server.once('error', reject);
   });
-  console.log(`Wavefit ${config.version} is running at http://localhost:${config.port} (database ${config.dbPath})`);
+  console.log(`Wavefit ${config.version} is running at http://localhost:${config.port} (database ${config.postgresUrl ? 'PostgreSQL' : config.dbPath})`);
   if (config.publicUrl !== `http://localhost:${config.port}`) console.log(`Public address: ${config.publicUrl}`);
 
   const shutdown = () => {

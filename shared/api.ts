@@ -92,6 +92,7 @@ export type ApiErrorCode =
   | 'fit_not_ready'
   | 'refit_not_ready'
   | 'refit_not_running'
+  | 'not_on_this_database'
   | 'internal';
 
 /** details of a validation_failed error: messages per field path ("email", "waves.0.label"); "" is the body as a whole. */

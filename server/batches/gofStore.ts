@@ -123,7 +123,8 @@ export class GofStore {
   computations = 0;
 
   constructor(private readonly dataSource: DataSource) {
-    onBatchDone(syncDb(dataSource), (batchId) => void this.warm(batchId).catch(() => undefined));
+    // No batches run on PostgreSQL yet (server/db/sync.ts), so there is nothing to warm there.
+    if (dataSource.options.type !== 'postgres') onBatchDone(syncDb(dataSource), (batchId) => void this.warm(batchId).catch(() => undefined));
   }
 
   /** The stored GOF of one period at the default coverages, or null when not computed yet. */

@@ -19,7 +19,7 @@ async function main(argv: string[]): Promise<void> {
     return;
   }
   const config = loadConfig();
-  const dataSource = createDataSource({ database: config.dbPath, migrationsRun: false });
+  const dataSource = createDataSource({ database: config.dbPath, postgresUrl: config.postgresUrl ?? undefined, migrationsRun: false });
   await dataSource.initialize();
   try {
     if (argv.includes('--revert')) {

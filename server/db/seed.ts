@@ -9,9 +9,9 @@ import { openDataSource } from './dataSource';
 
 async function main(): Promise<void> {
   const config = loadConfig();
-  const dataSource = await openDataSource({ database: config.dbPath });
+  const dataSource = await openDataSource({ database: config.dbPath, postgresUrl: config.postgresUrl ?? undefined });
   try {
-    const result = await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: true });
+    const result = await seedDemo(dataSource, { passwordHash: config.passwordHash, withResults: !config.postgresUrl });
     console.log(`Database: ${config.dbPath}`);
     console.log(describeSeed(result));
   } finally {

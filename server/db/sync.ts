@@ -10,11 +10,20 @@
  */
 import type BetterSqlite3 from 'better-sqlite3';
 import type { DataSource } from 'typeorm';
+import { ApiError } from '../errors';
 
 /** The synchronous database handle (better-sqlite3) under TypeORM's data source. */
 export type SyncDb = BetterSqlite3.Database;
 
 export function syncDb(dataSource: DataSource): SyncDb {
+  if (dataSource.options.type === 'postgres') {
+    // Said plainly to the user: on PostgreSQL only accounts, studies, teams and data work so far.
+    throw new ApiError(
+      501,
+      'not_on_this_database',
+      'This server runs on PostgreSQL, where jobs (batches, fits), review and notifications are not available yet: they need the SQLite database for now.',
+    );
+  }
   const db = (dataSource.driver as unknown as { databaseConnection?: SyncDb }).databaseConnection;
   if (!db || typeof db.prepare !== 'function') {
     throw new Error('jobs: the job queue needs an initialised better-sqlite3 data source');

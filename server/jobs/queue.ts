@@ -12,8 +12,8 @@ import { availableParallelism } from 'node:os';
 import type { DataSource } from 'typeorm';
 import type { JobState } from './entities';
 import { inSyncTransaction, sqlNow, syncDb } from '../db/sync';
-import { WorkerPool, type Slot, type Task } from './pool';
-import type { FromWorker } from './protocol';
+import type { ChunkBackend, ChunkBackendEvents, ChunkTask } from './backend';
+import { ThreadBackend } from './threads';
 import { getJobKind, type ChunkPlan, type JobInfo, type JobKind, type SyncDb } from './registry';
 import { appendLog, claimJobRow, completeJobRow, createJobRow, endJobRow, TERMINAL } from './rows';
 import { statusFromRow, type JobStatus } from './status';
@@ -27,6 +27,8 @@ export interface JobQueueOptions {
   idleShutdownMs?: number;
   /** Where queue events are reported (default: nowhere). */
   log?: (line: string) => void;
+  /** Where chunks run (default: worker threads of this process, see ./backend.ts). */
+  backend?: ChunkBackend;
 }
 
 
@@ -66,9 +68,9 @@ export class JobQueue extends EventEmitter {
   readonly dataSource: DataSource;
   readonly workerCount: number;
   private readonly maxChunkRetries: number;
-  private readonly idleShutdownMs: number;
   private readonly report: (line: string) => void;
-  private readonly pool: WorkerPool;
+  readonly backend: ChunkBackend;
+  private readonly events: ChunkBackendEvents;
   private readonly active = new Map<number, ActiveJob>();
   private readonly waiters = new Map<number, ((state: JobState) => void)[]>();
   private started = false;
@@ -77,7 +79,6 @@ export class JobQueue extends EventEmitter {
   private pumping = false;
   private pumpAgain = false;
   private nextTaskId = 1;
-  private idleTimer: NodeJS.Timeout | null = null;
   /** Jobs whose context failed to load or whose kind is unknown, so they are not retried in a loop. */
   private readonly skipped = new Set<number>();
 
@@ -87,13 +88,16 @@ export class JobQueue extends EventEmitter {
     this.workerCount = options.workers ?? defaultWorkerCount();
     if (!Number.isInteger(this.workerCount) || this.workerCount < 1) throw new Error(`jobs: workers must be a whole number >= 1, got ${this.workerCount}`);
     this.maxChunkRetries = options.maxChunkRetries ?? 3;
-    this.idleShutdownMs = options.idleShutdownMs ?? 60_000;
     this.report = options.log ?? (() => undefined);
-    this.pool = new WorkerPool(this.workerCount, {
-      message: (slot, message) => this.onMessage(slot, message),
-      exit: (slot, code) => void this.onExit(slot, code),
+    this.backend = options.backend ?? new ThreadBackend(this.workerCount, options.idleShutdownMs ?? 60_000);
+    this.events = {
+      result: (task, result, workMs) => this.onResult(task, result, workMs),
+      error: (task, message) => this.onChunkError(task, message),
+      lost: (task, reason) => void this.onLost(task, reason),
+      log: (task, line) =>
+        void inSyncTransaction(this.db, (db) => appendLog(db, task.jobId, `chunk ${task.chunkIndex}: ${line}`)).catch(() => undefined),
       report: (line) => this.report(line),
-    });
+    };
   }
 
   private get db(): SyncDb {
@@ -111,6 +115,7 @@ export class JobQueue extends EventEmitter {
     this.stopped = false;
     this.dirty = true;
     this.skipped.clear();
+    await this.backend.start(this.events);
     await this.pump();
   }
 
@@ -120,9 +125,7 @@ export class JobQueue extends EventEmitter {
    */
   async stop(): Promise<void> {
     this.stopped = true;
-    if (this.idleTimer) clearTimeout(this.idleTimer);
-    this.idleTimer = null;
-    await Promise.all(this.pool.slots.map((slot) => (slot ? this.pool.stopSlot(slot) : undefined)));
+    await this.backend.stop();
     this.active.clear();
   }
 
@@ -177,7 +180,7 @@ export class JobQueue extends EventEmitter {
     let secondsLeft: number | null = null;
     if (job && !job.ended && state === 'running') {
       let live = 0;
-      for (const slot of this.pool.slots) if (slot?.task?.jobId === id) live += Math.min(slot.task.liveUnits, slot.task.units);
+      for (const task of this.backend.inFlight()) if (task.jobId === id) live += Math.min(task.liveUnits, task.units);
       progressDone = Math.min(Number(row.progressTotal), progressDone + live);
       const elapsed = (performance.now() - job.sessionStart) / 1000;
       const pace = job.sessionUnits + live;
@@ -203,16 +206,12 @@ export class JobQueue extends EventEmitter {
    * Returns the chunk it was working on, or null when no worker was busy.
    */
   crashWorkerForTest(): { jobId: number; chunkIndex: number } | null {
-    const slot = this.pool.slots.find((s) => s?.task);
-    if (!slot || !slot.task) return null;
-    const { jobId, chunkIndex } = slot.task;
-    void slot.worker.terminate();
-    return { jobId, chunkIndex };
+    return this.backend.crashOneForTest();
   }
 
   /** Number of live worker threads (for tests and diagnostics). */
   get liveWorkers(): number {
-    return this.pool.live;
+    return this.backend.live;
   }
 
   // ---------------------------------------------------------------- scheduling
@@ -270,7 +269,7 @@ export class JobQueue extends EventEmitter {
       );
       const resumed = row.state === 'running';
       const stillOpen = await inSyncTransaction(this.db, (db) =>
-        claimJobRow(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.workerCount} worker(s)`),
+        claimJobRow(db, row.id, resumed ? `resumed: ${done.size} of ${plan.length} chunks were already stored` : `started with ${this.backend.workersLabel}`),
       );
       if (!stillOpen) continue;
       const unitsDone = plan.reduce((sum, p, i) => sum + (done.has(i) ? p.units : 0), 0);
@@ -300,12 +299,13 @@ export class JobQueue extends EventEmitter {
   private dispatch(): void {
     if (this.stopped) return;
     const jobs = [...this.active.values()].filter((j) => !j.ended).sort((a, b) => a.id - b.id);
+    let inFlight = this.backend.inFlight().length;
     for (const job of jobs) {
       for (let c = 0; c < job.plan.length; c++) {
         if (job.done.has(c) || job.busy.has(c)) continue;
-        const slot = this.pool.idleSlot();
-        if (!slot) return;
-        this.runOn(slot, job, c);
+        if (inFlight >= this.backend.capacity) return;
+        this.runChunk(job, c);
+        inFlight++;
       }
     }
   }
@@ -313,51 +313,41 @@ export class JobQueue extends EventEmitter {
 
 
 
-  private runOn(slot: Slot, job: ActiveJob, chunkIndex: number): void {
-    if (!slot.contexts.has(job.id)) {
-      this.pool.post(slot, { type: 'context', jobId: job.id, modulePath: job.kind.workerModule, context: job.context });
-      slot.contexts.add(job.id);
-    }
-    const task: Task = { taskId: this.nextTaskId++, jobId: job.id, chunkIndex, units: job.plan[chunkIndex].units, liveUnits: 0 };
-    slot.task = task;
-    slot.worker.ref();
+  private runChunk(job: ActiveJob, chunkIndex: number): void {
     job.busy.add(chunkIndex);
-    if (this.idleTimer) {
-      clearTimeout(this.idleTimer);
-      this.idleTimer = null;
-    }
-    this.pool.post(slot, { type: 'run', taskId: task.taskId, jobId: job.id, chunkIndex, chunk: job.plan[chunkIndex].chunk });
+    this.backend.run({
+      taskId: this.nextTaskId++,
+      jobId: job.id,
+      chunkIndex,
+      units: job.plan[chunkIndex].units,
+      liveUnits: 0,
+      modulePath: job.kind.workerModule,
+      context: job.context,
+      chunk: job.plan[chunkIndex].chunk,
+    });
   }
 
-
-  private onMessage(slot: Slot, message: FromWorker): void {
-    if (message.type === 'ready') return;
-    const task = slot.task;
-    if (!task || task.taskId !== message.taskId) return; // a late message from an abandoned task
+  private onResult(task: ChunkTask, result: unknown, workMs: number): void {
     const job = this.active.get(task.jobId);
-    if (message.type === 'progress') {
-      task.liveUnits = message.unitsDone;
-      return;
-    }
-    if (message.type === 'log') {
-      void inSyncTransaction(this.db, (db) => appendLog(db, task.jobId, `chunk ${task.chunkIndex}: ${message.line}`)).catch(() => undefined);
-      return;
-    }
-    this.pool.releaseSlot(slot);
     if (!job || job.ended) {
       void this.pump();
       return;
     }
-    if (message.type === 'error') {
-      job.busy.delete(task.chunkIndex);
-      void this.failJob(job, `chunk ${task.chunkIndex} failed: ${message.message}`);
-      return;
-    }
-    void this.storeResult(job, task, message.result, message.workMs);
+    void this.storeResult(job, task, result, workMs);
     void this.pump();
   }
 
-  private async storeResult(job: ActiveJob, task: Task, result: unknown, workMs: number): Promise<void> {
+  private onChunkError(task: ChunkTask, message: string): void {
+    const job = this.active.get(task.jobId);
+    if (!job || job.ended) {
+      void this.pump();
+      return;
+    }
+    job.busy.delete(task.chunkIndex);
+    void this.failJob(job, `chunk ${task.chunkIndex} failed: ${message}`);
+  }
+
+  private async storeResult(job: ActiveJob, task: ChunkTask, result: unknown, workMs: number): Promise<void> {
     const chunkIndex = task.chunkIndex;
     const chunk = job.plan[chunkIndex];
     let stored = false;
@@ -429,28 +419,14 @@ export class JobQueue extends EventEmitter {
     const job = this.active.get(jobId);
     if (job) this.afterEnd(job, state);
     else this.settle(jobId, state);
-    const stops: Promise<void>[] = [];
-    for (const slot of this.pool.slots) {
-      if (!slot) continue;
-      if (slot.task?.jobId === jobId) stops.push(this.pool.stopSlot(slot));
-      else if (slot.contexts.has(jobId)) {
-        this.pool.post(slot, { type: 'forget', jobId });
-        slot.contexts.delete(jobId);
-      }
-    }
-    await Promise.all(stops);
+    await this.backend.dropJob(jobId);
     void this.pump();
   }
 
   private afterEnd(job: ActiveJob, state: JobState): void {
     job.ended = true;
     this.active.delete(job.id);
-    for (const slot of this.pool.slots) {
-      if (slot && slot.contexts.has(job.id) && !slot.stopping) {
-        this.pool.post(slot, { type: 'forget', jobId: job.id });
-        slot.contexts.delete(job.id);
-      }
-    }
+    if (state === 'done') this.backend.forgetJob(job.id);
     this.settle(job.id, state);
   }
 
@@ -462,12 +438,8 @@ export class JobQueue extends EventEmitter {
   }
 
 
-  private async onExit(slot: Slot, code: number): Promise<void> {
-    this.pool.vacate(slot);
-    const task = slot.task;
-    slot.task = null;
-    if (slot.stopping || this.stopped) return;
-    this.report(`jobs: worker ${slot.index} stopped unexpectedly (exit code ${code})`);
+  private async onLost(task: ChunkTask | null, reason: string): Promise<void> {
+    if (this.stopped) return;
     if (task) {
       const job = this.active.get(task.jobId);
       if (job && !job.ended) {
@@ -479,7 +451,7 @@ export class JobQueue extends EventEmitter {
           return;
         }
         await inSyncTransaction(this.db, (db) =>
-          appendLog(db, job.id, `worker stopped unexpectedly during chunk ${task.chunkIndex}; computing it again (try ${tries + 1})`),
+          appendLog(db, job.id, `${reason} during chunk ${task.chunkIndex}; computing it again (try ${tries + 1})`),
         ).catch(() => undefined);
       }
     }
@@ -487,15 +459,8 @@ export class JobQueue extends EventEmitter {
   }
 
   private scheduleIdleShutdown(): void {
-    if (this.stopped || this.idleTimer) return;
-    const busy = this.pool.slots.some((s) => s?.task) || this.active.size > 0;
-    const live = this.pool.slots.some((s) => s !== null);
-    if (busy || !live) return;
-    this.idleTimer = setTimeout(() => {
-      this.idleTimer = null;
-      const stillIdle = !this.pool.slots.some((s) => s?.task) && this.active.size === 0;
-      if (stillIdle) for (const slot of this.pool.slots) if (slot) void this.pool.stopSlot(slot);
-    }, this.idleShutdownMs);
-    this.idleTimer.unref();
+    if (this.stopped) return;
+    if (this.active.size > 0 || this.backend.inFlight().length > 0) return;
+    this.backend.idle();
   }
 }

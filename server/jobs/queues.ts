@@ -1,8 +1,18 @@
 /** One job queue per data source: created on first use, started at boot, stopped with the app. */
 import type { DataSource } from 'typeorm';
 import { inSyncTransactionNow, syncDb } from '../db/sync';
+import type { ChunkBackend } from './backend';
 import { JobQueue, type JobQueueOptions } from './queue';
+import { BullmqBackend } from './remote/bullmq';
 import { createJobRow } from './rows';
+
+/**
+ * The backend the configuration asks for: BullMQ on Redis when REDIS_URL is set (chunks computed by
+ * `npm run worker` processes), else undefined (the queue's own worker threads).
+ */
+export function backendFromEnv(env: Record<string, string | undefined> = process.env): ChunkBackend | undefined {
+  return env.REDIS_URL ? new BullmqBackend({ url: env.REDIS_URL }) : undefined;
+}
 
 const queues = new WeakMap<DataSource, JobQueue>();
 
@@ -13,7 +23,7 @@ const queues = new WeakMap<DataSource, JobQueue>();
 export function jobQueueFor(dataSource: DataSource, options?: JobQueueOptions): JobQueue {
   let queue = queues.get(dataSource);
   if (!queue) {
-    queue = new JobQueue(dataSource, options);
+    queue = new JobQueue(dataSource, { ...options, backend: options?.backend ?? backendFromEnv() });
     queues.set(dataSource, queue);
   }
   return queue;

@@ -4,15 +4,16 @@
  * did not converge or the batch ran few chains. Listed in server/db/migrations.ts after the review board.
  */
 import type { MigrationInterface, QueryRunner } from 'typeorm';
+import { ddl } from '../db/migrations/ddl';
 
 export class SignoffAcknowledgement1733100001900 implements MigrationInterface {
   name = 'SignoffAcknowledgement1733100001900';
 
   async up(q: QueryRunner): Promise<void> {
-    await q.query(`ALTER TABLE "report_signoffs" ADD COLUMN "acknowledgement" text`);
+    await ddl(q, `ALTER TABLE "report_signoffs" ADD COLUMN "acknowledgement" text`);
   }
 
   async down(q: QueryRunner): Promise<void> {
-    await q.query(`ALTER TABLE "report_signoffs" DROP COLUMN "acknowledgement"`);
+    await ddl(q, `ALTER TABLE "report_signoffs" DROP COLUMN "acknowledgement"`);
   }
 }
