@@ -8,9 +8,10 @@ import { engineSections, type BenchSection } from './engine';
 import { estimateSections } from './estimate';
 import { exploreSections } from './explore';
 import { gofLoadSections } from './gofLoad';
+import { refitSections } from './refits';
 import { webSections } from './web';
 
-const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...distributedSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections];
+const SECTIONS: BenchSection[] = [...engineSections, ...batchSections, ...distributedSections, ...estimateSections, ...exploreSections, ...webSections, ...gofLoadSections, ...refitSections];
 
 async function main(): Promise<void> {
   const only = process.argv.slice(2).join(' ').toLowerCase();

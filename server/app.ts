@@ -12,6 +12,7 @@ import { modelsRouter } from './models/routes';
 import { notifyRouter } from './notify/routes';
 import { reviewRouter } from './review/routes';
 import { reportsRouter } from './reports/routes';
+import { refitsRouter } from './refits/routes';
 import { apiNotFound, errorHandler, type ErrorLogger } from './errors';
 import { securityHeaders } from './securityHeaders';
 import { authRouter } from './auth/routes';
@@ -67,6 +68,7 @@ export function createApp(deps: AppDeps, options: CreateAppOptions = {}): Expres
   api.use('/studies', dataRouter(routeDeps));
   api.use('/studies', batchesRouter(routeDeps));
   api.use('/studies', modelsRouter(routeDeps));
+  api.use('/studies', refitsRouter(routeDeps));
   api.use('/studies', exploreRouter(routeDeps));
   const review = reviewRouter(routeDeps);
   api.use(review);

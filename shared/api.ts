@@ -63,7 +63,7 @@ export interface ApiErrorBody {
  * token_expired 401, token_invalid 401, session_ended 401 (signed out, signed out everywhere or
  * password changed), invalid_credentials 401, forbidden 403, not_found 404,
  * already_member 409, last_lead 409, data_in_use 409, invitation_expired 410, invitation_used 410,
- * payload_too_large 413, rate_limited 429, internal 500.
+ * fit_not_ready 409, refit_not_ready 409, refit_not_running 409 (re-fit studies, shared/refits.ts), payload_too_large 413, rate_limited 429, internal 500.
  */
 export type ApiErrorCode =
   | 'bad_request'
@@ -89,6 +89,9 @@ export type ApiErrorCode =
   | 'verdict_conflict'
   | 'already_picked'
   | 'acknowledgement_required'
+  | 'fit_not_ready'
+  | 'refit_not_ready'
+  | 'refit_not_running'
   | 'not_on_this_database'
   | 'internal';
 

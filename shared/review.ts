@@ -39,6 +39,7 @@
  */
 import { z } from 'zod';
 import type { LineupResult } from './lineups';
+import type { RefitResults } from './refits';
 import { AUX_STATISTIC_IDS, type AuxStatisticId } from './auxStatistics';
 import { PLAIN_TEXT_MESSAGE, isPlainText } from './plainText';
 
@@ -476,6 +477,8 @@ export interface ReportJson {
   allPeriods: ReportAllPeriodsJson[] | null;
   counts: VerdictCounts;
   comparison: CompareResponse | null;
+  /** A re-fit study the lead chose to include (shared/refits.ts), or null. */
+  refitStudy: RefitResults | null;
   signoffs: SignoffDto[];
   changedSinceSignoff: boolean;
   software: { wavefit: string; node: string; packages: Record<string, string> };

@@ -4,7 +4,7 @@ import { colors } from '../ui/theme';
 import { radius, space } from '../ui/tokens';
 
 /** A thin progress bar with its figures in words beside it (never the bar alone). */
-export function ProgressBar({ done, total, caption, testID }: { done: number; total: number; caption?: string; testID?: string }) {
+export function ProgressBar({ done, total, caption, unit = 'chains', testID }: { done: number; total: number; caption?: string; unit?: string; testID?: string }) {
   const share = total > 0 ? Math.min(1, Math.max(0, done / total)) : 0;
   const percent = Math.round(share * 100);
   return (
@@ -14,7 +14,7 @@ export function ProgressBar({ done, total, caption, testID }: { done: number; to
         aria-valuemin={0}
         aria-valuemax={total}
         aria-valuenow={done}
-        accessibilityLabel={`${done} of ${total} chains done`}
+        accessibilityLabel={`${done} of ${total} ${unit} done`}
         style={{ height: 8, borderRadius: radius.pill, backgroundColor: colors.surfaceSunk, borderWidth: 1, borderColor: colors.rule, overflow: 'hidden' }}
       >
         <View style={{ width: `${percent}%`, height: '100%', backgroundColor: colors.accent }} />
@@ -23,7 +23,7 @@ export function ProgressBar({ done, total, caption, testID }: { done: number; to
         <Text variant="figure" style={{ color: colors.muted }}>
           {done.toLocaleString('en-GB')} / {total.toLocaleString('en-GB')}
         </Text>{' '}
-        chains ({percent}%){caption ? ` · ${caption}` : ''}
+        {unit} ({percent}%){caption ? ` · ${caption}` : ''}
       </Text>
     </View>
   );

@@ -18,6 +18,7 @@ import { Checkbox } from '../ui/Checkbox';
 import { useBatches } from '../batches/queries';
 import { parseIds } from '../api/params';
 import { useCompare } from './queries';
+import { RefitLine } from '../refits/RefitLine';
 import { verdictLook } from '../board/verdictWords';
 import { parseStudyId, useStudy } from '../studies/queries';
 import { StudyNotFound } from '../studies/StudyNotFound';
@@ -198,6 +199,7 @@ export function CompareScreen() {
               ))}
             </View>
           </Section>
+          <RefitLine studyId={studyId} fitIds={data.columns.map((c) => c.fitId).filter((id): id is number => id != null)} />
           <Banner tone="caution" testID="compare-independence">
             The p-values of different statistics come from the same simulated chains and are not independent: the counts failing at 0.05 are not a joint test, and with many statistics some fail by chance.
           </Banner>

@@ -9,6 +9,7 @@ import { useState } from 'react';
 import { View } from 'react-native';
 import { MIN_ACK_REASON } from '../../shared/review';
 import { getApiBase, messageOf } from '../api/client';
+import { useRefits } from '../refits/queries';
 import { useBatches } from '../batches/queries';
 import { parseId, parseIds } from '../api/params';
 import { useReportMutations, useReportStatus } from './queries';
@@ -36,7 +37,7 @@ const time = (iso: string) => `${formatDate(iso)}, ${new Date(iso).toISOString()
 
 
 export function ReportScreen() {
-  const params = useLocalSearchParams<{ studyId: string; batch?: string; compare?: string }>();
+  const params = useLocalSearchParams<{ studyId: string; batch?: string; compare?: string; refit?: string }>();
   const studyId = parseStudyId(params.studyId);
   const router = useRouter();
   const study = useStudy(studyId);
@@ -44,6 +45,9 @@ export function ReportScreen() {
   const done = (batches.data?.batches ?? []).filter((b) => b.state === 'done');
   const batchId = parseId(params.batch) ?? done[0]?.id ?? null;
   const compare = parseIds(params.compare).filter((id) => id !== batchId);
+  const refits = useRefits(studyId);
+  const finishedRefits = (refits.data?.refits ?? []).filter((r) => r.state === 'done');
+  const refitId = parseId(params.refit);
   const status = useReportStatus(studyId ?? 0, batchId);
   const mutations = useReportMutations(studyId ?? 0, batchId ?? 0);
   const [note, setNote] = useState('');
@@ -57,7 +61,7 @@ export function ReportScreen() {
   if (studyId === null || study.error?.status === 404) return <StudyNotFound />;
   const s = status.data;
   const api = `${getApiBase()}/studies/${studyId}/batches/${batchId}`;
-  const compareQuery = compare.length ? `compare=${compare.join(',')}&` : '';
+  const compareQuery = (compare.length ? `compare=${compare.join(',')}&` : '') + (refitId !== null ? `refit=${refitId}&` : '');
   const batchName = s?.batchLabel ?? 'this batch';
 
   const concerns = s?.concerns ?? [];
@@ -110,6 +114,15 @@ export function ReportScreen() {
               <Banner tone="caution">{`${s.counts.awaiting} of ${s.counts.total} statistics still await a verdict; the report says so.`}</Banner>
             ) : null}
             {s.changedSinceSignoff ? <Banner tone="caution">Verdicts or comments changed after the last sign-off.</Banner> : null}
+            {finishedRefits.length > 0 && s.canSign ? (
+              <SegmentedControl
+                label="Include a re-fit study"
+                options={[{ value: 'none', label: 'None' }, ...finishedRefits.map((r) => ({ value: String(r.id), label: `Re-fit study ${r.id}`, description: r.label }))]}
+                value={refitId !== null ? String(refitId) : 'none'}
+                onChange={(v) => router.setParams({ refit: v === 'none' ? '' : v })}
+              />
+            ) : null}
+            {refitId !== null ? <Text variant="small" testID="report-refit">{`The report includes re-fit study ${refitId}: bias, spread and coverage of the estimates.`}</Text> : null}
             {compare.length ? <Text variant="small">{`The report includes the comparison with batch${compare.length > 1 ? 'es' : ''} ${compare.join(', ')}.`}</Text> : null}
           </Section>
 

@@ -21,6 +21,7 @@ const plannedSections = [
   { key: 'data', title: 'Data', what: 'Upload the waves, actors and covariates of the network.' },
   { key: 'models', title: 'Models', what: 'Choose effects and fit a model by the method of moments.' },
   { key: 'batches', title: 'Batches', what: 'Simulate a fitted model many times and compare with the next wave.' },
+  { key: 'refits', title: 'Re-fit studies', what: 'Simulate from fitted models and fit them again: bias, spread and coverage of the estimates.' },
   { key: 'board', title: 'Review board', what: 'Give each auxiliary statistic a verdict together, then sign off the report.' },
 ];
 
@@ -101,6 +102,8 @@ export function StudyOverviewScreen() {
                   <TextLink href={`/studies/${study.id}/batches`}>Open the batches</TextLink>
                 ) : s.key === 'models' ? (
                   <TextLink href={`/studies/${study.id}/models`}>Open the models</TextLink>
+                ) : s.key === 'refits' ? (
+                  <TextLink href={`/studies/${study.id}/refits`}>Open the re-fit studies</TextLink>
                 ) : (
                   <TextLink href={`/studies/${study.id}/board`}>Open the review board</TextLink>
                 )}

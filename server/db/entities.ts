@@ -10,6 +10,7 @@ import { InvitationEntity } from '../invitations/entities';
 import { lineupEntities } from '../lineups/entities';
 import { JobChunkEntity, JobEntity } from '../jobs/entities';
 import { FitEntity, ModelSpecEntity } from '../models/entities';
+import { RefitEntity, RefitResultEntity } from '../refits/entities';
 import { reviewEntities } from '../review/entities';
 import { StudyEntity } from '../studies/entities';
 import { MembershipEntity } from '../team/entities';
@@ -33,4 +34,6 @@ export const entities = [
   ...lineupEntities,
   EndedSessionEntity,
   BatchGofEntity,
+  RefitEntity,
+  RefitResultEntity,
 ];

@@ -20,6 +20,7 @@ import { Review1733100001200 } from '../review/migration';
 import { FixedPairsAndPresence1733100001300 } from '../data/migrations/0003-FixedPairsAndPresence';
 import { SignoffAcknowledgement1733100001900 } from '../reports/migration';
 import { Lineups1733100002000 } from '../lineups/migration';
+import { Refits1733100002400 } from '../refits/migration';
 
 export const migrations = [
   Accounts1733100000001,
@@ -33,4 +34,5 @@ export const migrations = [
   Lineups1733100002000,
   Sessions1733100002200,
   BatchGof1733100002300,
+  Refits1733100002400,
 ];

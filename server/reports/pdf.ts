@@ -7,6 +7,7 @@
  * ./pdfChart.ts.
  */
 import PDFDocument from 'pdfkit';
+import type { McValue, RefitResults } from '../../shared/refits';
 import {
   chartScaleOf,
   formatPValue,
@@ -140,6 +141,40 @@ function comparisonSection(w: Writer, cmp: CompareResponse): void {
   for (const note of cmp.notes) w.text(`Note: ${note}`, { size: 8.5, colour: C.muted });
 }
 
+function refitSection(w: Writer, study: RefitResults): void {
+  w.need(220);
+  w.heading('Re-fit study');
+  const r = study.refit;
+  w.text(
+    `${r.label}: ${r.replications} panels simulated from each chosen fit (seed ${r.seed}), from the observed first wave, and the model fitted again to each. ` +
+      'Figures over the converged re-fits; each with its Monte Carlo error (plus or minus one standard error over the re-fits). ' +
+      'SD / mean SE near 1 means the standard errors are about right; coverage near 95% means the intervals can be trusted.',
+    { size: 9, colour: C.muted, gap: 6 },
+  );
+  const mc = (v: McValue, d = 3) => (v.value === null ? '—' : `${v.value.toFixed(d)} ± ${v.mcError === null ? '—' : v.mcError.toFixed(d)}`);
+  for (const g of study.groups) {
+    w.need(120);
+    w.text(g.title, { size: 10, gap: 2 });
+    w.text(`${g.converged} of ${g.refits} re-fits converged${g.failed ? `; ${g.failed} failed` : ''}.`, { size: 9, colour: C.muted, gap: 4 });
+    table(
+      w,
+      [
+        { title: 'Parameter', width: 2 },
+        { title: 'Generating', width: 1, align: 'right', mono: true },
+        { title: 'Bias', width: 1.4, align: 'right', mono: true },
+        { title: 'SD', width: 1.4, align: 'right', mono: true },
+        { title: 'Mean SE', width: 1.4, align: 'right', mono: true },
+        { title: 'SD / SE', width: 1.2, align: 'right', mono: true },
+        { title: '95% coverage', width: 1.3, align: 'right', mono: true },
+      ],
+      g.parameters.map((q) => ({
+        cells: [q.label, num(q.truth), mc(q.bias), mc(q.sd), mc(q.meanSe), mc(q.ratio, 2), q.coverage.value === null ? '—' : `${(q.coverage.value * 100).toFixed(0)}% ± ${((q.coverage.mcError ?? 0) * 100).toFixed(0)}`],
+      })),
+    );
+    for (const c of g.cautions) w.text(`Caution: ${c}`, { size: 8.5, colour: C.unsure });
+  }
+}
+
 /** Builds the PDF; resolves with its bytes. */
 export function reportPdf(report: ReportJson): Promise<Buffer> {
   const doc = new PDFDocument({
@@ -261,6 +296,7 @@ export function reportPdf(report: ReportJson): Promise<Buffer> {
   if (report.allPeriods) allPeriodsSection(w, report);
 
   if (report.comparison) comparisonSection(w, report.comparison);
+  if (report.refitStudy) refitSection(w, report.refitStudy);
 
   w.need(260);
   w.heading('Reproducibility');

@@ -5,6 +5,7 @@
  * sign-offs, and the software versions and seeds needed to reproduce it. The PDF, the CSV and the JSON
  * export are all drawn from this one object.
  */
+import type { RefitResults } from '../../shared/refits';
 import { existsSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { DataSource } from 'typeorm';
@@ -52,6 +53,7 @@ export function buildReport(
   gof: GofCache,
   batch: LoadedBatch,
   compareWith: number[],
+  refitStudy: RefitResults | null = null,
 ): ReportJson {
   requireDone(batch);
   const db = syncDb(dataSource);
@@ -145,6 +147,7 @@ export function buildReport(
     allPeriods,
     counts: verdictCounts(db, batch),
     comparison,
+    refitStudy,
     signoffs,
     changedSinceSignoff: changedSince(db, batch.row.id, signoffs[0]),
     software: softwareVersions(),

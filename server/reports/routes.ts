@@ -19,6 +19,19 @@ import { estimatesCsv, gofCsv } from './csv';
 import { reportPdf } from './pdf';
 import { acknowledgementFor, concernsOf } from './signoffGuard';
 import { buildReport } from './reportData';
+import { getRefit, refitResults } from '../refits/service';
+import type { RefitResults } from '../../shared/refits';
+import type { DataSource } from 'typeorm';
+
+/** The re-fit study the lead chose to include (?refit=ID), summarised over its converged re-fits; null without one. */
+function refitOf(dataSource: DataSource, req: Request): RefitResults | null {
+  const raw = req.query.refit;
+  if (raw === undefined || raw === '') return null;
+  if (typeof raw !== 'string' || !/^[1-9][0-9]{0,15}$/.test(raw)) throw badRequest('refit is the id of a re-fit study.');
+  const refit = getRefit(dataSource, currentStudy(req).study.id, Number(raw));
+  if (!refit) throw badRequest(`Re-fit study ${raw} is not in this study.`);
+  return refitResults(dataSource, refit, 'converged');
+}
 
 function compareIds(req: Request): number[] {
   try {
@@ -72,7 +85,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
 
   router.get(`${B}/report.json`, ...member('read'), async (req, res) => {
     await gof.prepare(dataSource, batchOf(req));
-    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
+    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req), refitOf(dataSource, req));
     res.set('Content-Disposition', `attachment; filename="${fileName(report.study.name, report.batch.id, 'json')}"`).json(report);
   });
 
@@ -90,7 +103,7 @@ export function reportsRouter(deps: RouteDeps, review: Pick<ReviewRouter, 'notif
 
   router.get(`${B}/report.pdf`, ...member('read'), async (req, res) => {
     await gof.prepare(dataSource, batchOf(req));
-    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req));
+    const report = buildReport(dataSource, gof, batchOf(req), compareIds(req), refitOf(dataSource, req));
     const pdf = await reportPdf(report);
     res
       .status(200)

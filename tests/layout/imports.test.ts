@@ -29,7 +29,7 @@ export const LAYERS = ['engine', 'schema', 'base', 'service', 'routes', 'root'] 
 export type Layer = (typeof LAYERS)[number];
 
 /** Lowest first. Within a layer a feature may import only the features before it. */
-export const FEATURE_ORDER = ['notify', 'auth', 'studies', 'team', 'invitations', 'data', 'models', 'batches', 'review', 'lineups', 'reports', 'explore'];
+export const FEATURE_ORDER = ['notify', 'auth', 'studies', 'team', 'invitations', 'data', 'models', 'batches', 'review', 'lineups', 'refits', 'reports', 'explore'];
 
 const ROOT_DB_FILES = new Set(['dataSource.ts', 'entities.ts', 'migrations.ts', 'migrate.ts', 'seed.ts']);
 const BASE_FOLDERS = new Set(['mail', 'jobs', 'db']);

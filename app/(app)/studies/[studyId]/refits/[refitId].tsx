@@ -1,0 +1,3 @@
+import { RefitScreen } from '../../../../../features/refits/RefitScreen';
+
+export default RefitScreen;

@@ -1,0 +1,3 @@
+import { RefitListScreen } from '../../../../../features/refits/RefitListScreen';
+
+export default RefitListScreen;
