@@ -151,15 +151,18 @@ export const modelUpdateBodySchema = z
   .refine((b) => Object.keys(b).length > 0, 'Send at least one field to change.');
 export type ModelUpdateBody = z.input<typeof modelUpdateBodySchema>;
 
+/** An optional seed (a whole number from 0); without it the server draws one and stores it. */
+export const seedSchema = z
+  .number({ error: 'The seed must be a whole number.' })
+  .int('The seed must be a whole number.')
+  .min(0, 'The seed must be 0 or more.')
+  .max(Number.MAX_SAFE_INTEGER)
+  .optional();
+
 export const startFitBodySchema = z.object({
   /** 'estimate' (default): method of moments. 'fixed': store the given values as a fit, no estimation. */
   mode: z.enum(['estimate', 'fixed'], { error: 'The mode must be "estimate" or "fixed".' }).default('estimate'),
-  seed: z
-    .number({ error: 'The seed must be a whole number.' })
-    .int('The seed must be a whole number.')
-    .min(0, 'The seed must be 0 or more.')
-    .max(Number.MAX_SAFE_INTEGER)
-    .optional(),
+  seed: seedSchema,
   phase3Runs: z
     .number({ error: 'The number of Phase 3 runs must be a whole number.' })
     .int('The number of Phase 3 runs must be a whole number.')

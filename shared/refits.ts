@@ -21,6 +21,7 @@
  * to evaluate statistical methods, Statistics in Medicine 38 (formulas from memory).
  */
 import { z } from 'zod';
+import { seedSchema } from './models';
 
 export const MIN_REPLICATIONS = 20;
 export const MAX_REPLICATIONS = 1000;
@@ -46,12 +47,7 @@ export const createRefitBodySchema = z.object({
     .max(MAX_REPLICATIONS, `Simulate at most ${MAX_REPLICATIONS} panels per fit.`),
   /** Also fit every other chosen model to each fit's simulated panels. */
   cross: z.boolean({ error: 'cross is true or false.' }).default(false),
-  seed: z
-    .number({ error: 'The seed must be a whole number.' })
-    .int('The seed must be a whole number.')
-    .min(0, 'The seed must be 0 or more.')
-    .max(Number.MAX_SAFE_INTEGER)
-    .optional(),
+  seed: seedSchema,
   phase3Runs: z
     .number({ error: 'The number of Phase 3 runs must be a whole number.' })
     .int('The number of Phase 3 runs must be a whole number.')

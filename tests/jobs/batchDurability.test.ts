@@ -6,12 +6,13 @@
  * - the whole server (`tsx server/main.ts`, as `npm start` runs it) killed with SIGKILL mid-batch and
  *   started again on the same database file finishes the batch with identical results.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { exited, killGroup, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
 import { float64FromBlob, int32FromBlob, loadBatchContext, planBatchChunks } from '../../server/batches/jobKind';
 import { createBatch } from '../../server/batches/service';
 import { runChunk } from '../../server/batches/worker';
@@ -21,7 +22,6 @@ import { jobQueueFor, stopJobQueue, syncDb } from '../../server/jobs';
 import type { ParsedCreateBatchBody } from '../../shared/batches';
 import { AUX_STATISTIC_IDS } from '../../shared/auxStatistics';
 
-const ROOT = join(__dirname, '../..');
 const MODEL = {
   rates: [2.5, 2.5],
   effects: [
@@ -148,49 +148,9 @@ describe('batch durability across a killed server process', () => {
   const url = `http://127.0.0.1:${port}`;
   let child: ChildProcess | null = null;
 
-  function startServer(): Promise<ChildProcess> {
-    return new Promise((resolve, reject) => {
-      const proc = spawn(join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
-        cwd: ROOT,
-        env: {
-          ...process.env,
-          NODE_ENV: 'development',
-          PORT: String(port),
-          WAVEFIT_DB: file(),
-          WAVEFIT_SECRET: 'durability-test-secret-0123456789',
-          WAVEFIT_WORKERS: '2',
-          WAVEFIT_DIST: join(dir, 'no-dist'),
-        },
-        stdio: ['ignore', 'pipe', 'pipe'],
-        // Its own process group: tsx runs the server in a child process, and SIGKILL goes to both.
-        detached: true,
-      });
-      let out = '';
-      const timer = setTimeout(() => reject(new Error(`server did not start:\n${out}`)), 90_000);
-      proc.stdout!.on('data', (d: Buffer) => {
-        out += d.toString();
-        if (out.includes('is running at')) {
-          clearTimeout(timer);
-          resolve(proc);
-        }
-      });
-      proc.stderr!.on('data', (d: Buffer) => (out += d.toString()));
-      proc.on('exit', (code) => {
-        clearTimeout(timer);
-        if (!out.includes('is running at')) reject(new Error(`server exited (${code}):\n${out}`));
-      });
-    });
-  }
-  /** SIGKILL to the whole group (the tsx launcher and the node process running the server). */
-  const killGroup = (proc: ChildProcess, signal: NodeJS.Signals) => process.kill(-proc.pid!, signal);
-  const exited = (proc: ChildProcess) => new Promise<void>((resolve) => (proc.exitCode !== null || proc.signalCode !== null ? resolve() : proc.once('exit', () => resolve())));
+  const startServer = () => startServerProcess({ port, dbFile: file(), noDist: join(dir, 'no-dist'), secret: 'durability-test-secret-0123456789', startTimeoutMs: 90_000 });
 
-  afterAll(async () => {
-    if (child && child.exitCode === null && child.signalCode === null) {
-      killGroup(child, 'SIGKILL');
-      await exited(child);
-    }
-  });
+  afterAll(() => stopIfRunning(child));
 
   it('kill -9 mid-batch, restart on the same file: the batch finishes with results identical to the reference', async () => {
     child = await startServer();

@@ -7,12 +7,13 @@
  *   same database file finishes the study with results identical to the reference.
  * (The same approach as tests/jobs/batchDurability.test.ts.)
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { exited, killGroup, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
 import { openDataSource } from '../../server/db/dataSource';
 import { DEMO_PASSWORD, seedDemo } from '../../server/demo/seed';
 import { jobQueueFor, stopJobQueue, syncDb } from '../../server/jobs';
@@ -25,7 +26,6 @@ import { runRefit } from '../../server/refits/worker';
 import { modelSpecBodySchema, startFitBodySchema } from '../../shared/models';
 import { createRefitBodySchema } from '../../shared/refits';
 
-const ROOT = join(__dirname, '../..');
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 type Stored = Map<number, string>;
@@ -136,47 +136,9 @@ describe('re-fit study durability across a killed server process', () => {
   const url = `http://127.0.0.1:${port}`;
   let child: ChildProcess | null = null;
 
-  function startServer(): Promise<ChildProcess> {
-    return new Promise((resolve, reject) => {
-      const proc = spawn(join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
-        cwd: ROOT,
-        env: {
-          ...process.env,
-          NODE_ENV: 'development',
-          PORT: String(port),
-          WAVEFIT_DB: file(),
-          WAVEFIT_SECRET: 'refit-durability-test-secret-0123456789',
-          WAVEFIT_WORKERS: '2',
-          WAVEFIT_DIST: join(dir, 'no-dist'),
-        },
-        stdio: ['ignore', 'pipe', 'pipe'],
-        detached: true,
-      });
-      let out = '';
-      const timer = setTimeout(() => reject(new Error(`server did not start:\n${out}`)), 180_000);
-      proc.stdout!.on('data', (d: Buffer) => {
-        out += d.toString();
-        if (out.includes('is running at')) {
-          clearTimeout(timer);
-          resolve(proc);
-        }
-      });
-      proc.stderr!.on('data', (d: Buffer) => (out += d.toString()));
-      proc.on('exit', (code) => {
-        clearTimeout(timer);
-        if (!out.includes('is running at')) reject(new Error(`server exited (${code}):\n${out}`));
-      });
-    });
-  }
-  const killGroup = (proc: ChildProcess, signal: NodeJS.Signals) => process.kill(-proc.pid!, signal);
-  const exited = (proc: ChildProcess) => new Promise<void>((resolve) => (proc.exitCode !== null || proc.signalCode !== null ? resolve() : proc.once('exit', () => resolve())));
+  const startServer = () => startServerProcess({ port, dbFile: file(), noDist: join(dir, 'no-dist'), secret: 'refit-durability-test-secret-0123456789' });
 
-  afterAll(async () => {
-    if (child && child.exitCode === null && child.signalCode === null) {
-      killGroup(child, 'SIGKILL');
-      await exited(child);
-    }
-  });
+  afterAll(() => stopIfRunning(child));
 
   it('kill -9 mid-study, restart on the same file: the study finishes with re-fits identical to the reference', async () => {
     child = await startServer();
