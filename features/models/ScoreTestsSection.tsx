@@ -42,6 +42,9 @@ export function ScoreTestsSection({ studyId, modelId, fitId, mayEdit }: { studyI
         {tests.isLoading ? <Loading label="Simulating the model at its estimates…" /> : null}
         {tests.error ? <LoadError message={tests.error.message} onRetry={() => void tests.mutate()} /> : null}
         {t ? (
+          <View style={{ gap: space.s1 }}>
+            {/* The caution first: it says how far to trust the list below (hand-entered values, no convergence). */}
+            {t.caution ? <Banner tone="caution">{t.caution}</Banner> : null}
           <View role="list" accessibilityLabel="Left-out effects, most promising first" style={{ gap: space.s1 }}>
             {t.candidates.map((c, k) => (
               <View role="listitem" key={c.key} style={{ gap: space.half }} testID={`score-test-${c.key}`}>
@@ -72,8 +75,8 @@ export function ScoreTestsSection({ studyId, modelId, fitId, mayEdit }: { studyI
               </View>
             ))}
             {t.skipped.length ? <Text variant="caption">{`Not tested: ${t.skipped.map((s) => `${s.label} (${s.reason})`).join('; ')}`}</Text> : null}
-            {t.caution ? <Banner tone="caution">{t.caution}</Banner> : null}
             {error ? <Banner tone="error">{error}</Banner> : null}
+          </View>
           </View>
         ) : null}
       </Card>
