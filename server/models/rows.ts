@@ -5,6 +5,7 @@
 import type { DataSource } from 'typeorm';
 import type { FitResults, FitState, ModelNote } from '../../shared/models';
 import { loadStudyData, type LoadedStudyData } from '../data/store';
+import type { FitRow } from './entities';
 import { badRequest } from '../errors';
 import { jobQueueFor, parseSqlDate, syncDb, type JobStatus } from '../jobs';
 import type { StoredSpec } from './modelData';
@@ -21,25 +22,12 @@ export interface ModelRow {
   creatorName?: string | null;
 }
 
-export interface FitRowDb {
-  id: number;
-  studyId: number;
-  modelId: number;
-  jobId: number | null;
-  mode: string;
-  state: string;
-  seed: number;
-  phase3Runs: number;
-  startFromId: number | null;
-  spec: string;
-  plan: string;
-  results: string | null;
-  error: string | null;
-  createdById: number | null;
+/** A fits row as raw SQL returns it: the entity's columns, with the dates as SQLite's text. */
+export type FitRowDb = Omit<FitRow, 'createdAt' | 'finishedAt' | 'study' | 'model' | 'job' | 'createdBy'> & {
   createdAt: string;
   finishedAt: string | null;
   creatorName?: string | null;
-}
+};
 
 export const iso = (value: string | null | undefined): string | null => parseSqlDate(value)?.toISOString() ?? null;
 
