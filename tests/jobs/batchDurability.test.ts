@@ -12,12 +12,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { exited, killGroup, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
+import { exited, killGroup, signInToDemo, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
 import { float64FromBlob, int32FromBlob, loadBatchContext, planBatchChunks } from '../../server/batches/jobKind';
 import { createBatch } from '../../server/batches/service';
 import { runChunk } from '../../server/batches/worker';
 import { openDataSource } from '../../server/db/dataSource';
-import { DEMO_PASSWORD, seedDemo } from '../../server/demo/seed';
+import { seedDemo } from '../../server/demo/seed';
 import { jobQueueFor, stopJobQueue, syncDb } from '../../server/jobs';
 import type { ParsedCreateBatchBody } from '../../shared/batches';
 import { AUX_STATISTIC_IDS } from '../../shared/auxStatistics';
@@ -154,16 +154,7 @@ describe('batch durability across a killed server process', () => {
 
   it('kill -9 mid-batch, restart on the same file: the batch finishes with results identical to the reference', async () => {
     child = await startServer();
-    const login = await fetch(`${url}/api/auth/login`, {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json' },
-      body: JSON.stringify({ email: 'stats@harbourside.example', password: DEMO_PASSWORD }),
-    });
-    expect(login.status).toBe(200);
-    const { token } = (await login.json()) as { token: string };
-    const auth = { Authorization: `Bearer ${token}`, 'Content-Type': 'application/json' };
-    const studies = (await (await fetch(`${url}/api/studies`, { headers: auth })).json()) as { studies: { id: number }[] };
-    const studyId = studies.studies[0].id;
+    const { auth, studyId } = await signInToDemo(url, 'stats@harbourside.example');
     const chains = 3000;
     const created = await fetch(`${url}/api/studies/${studyId}/batches`, { method: 'POST', headers: auth, body: JSON.stringify(body(chains, 31337)) });
     expect(created.status).toBe(201);

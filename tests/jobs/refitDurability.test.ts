@@ -13,9 +13,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { DataSource } from 'typeorm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { exited, killGroup, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
+import { exited, killGroup, signInToDemo, startServerProcess, stopIfRunning } from './fixtures/serverProcess';
 import { openDataSource } from '../../server/db/dataSource';
-import { DEMO_PASSWORD, seedDemo } from '../../server/demo/seed';
+import { seedDemo } from '../../server/demo/seed';
 import { jobQueueFor, stopJobQueue, syncDb } from '../../server/jobs';
 import { startFit } from '../../server/models/fits';
 import { getModelRow } from '../../server/models/rows';
@@ -142,16 +142,7 @@ describe('re-fit study durability across a killed server process', () => {
 
   it('kill -9 mid-study, restart on the same file: the study finishes with re-fits identical to the reference', async () => {
     child = await startServer();
-    const login = await fetch(`${url}/api/auth/login`, {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json' },
-      body: JSON.stringify({ email: 'lead@harbourside.example', password: DEMO_PASSWORD }),
-    });
-    expect(login.status).toBe(200);
-    const { token } = (await login.json()) as { token: string };
-    const auth = { Authorization: `Bearer ${token}`, 'Content-Type': 'application/json' };
-    const studies = (await (await fetch(`${url}/api/studies`, { headers: auth })).json()) as { studies: { id: number }[] };
-    const studyId = studies.studies[0].id;
+    const { auth, studyId } = await signInToDemo(url, 'lead@harbourside.example');
     const models = (await (await fetch(`${url}/api/studies/${studyId}/models`, { headers: auth })).json()) as { models: { latestFit: { id: number; state: string } | null }[] };
     const fitIds = models.models.map((m) => m.latestFit).filter((f) => f && f.state === 'done').map((f) => f!.id).slice(0, 1);
     expect(fitIds.length).toBe(1);
