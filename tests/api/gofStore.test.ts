@@ -4,6 +4,10 @@
  * same numbers as computing them directly with the batches module's gofOf on the stored chains, and
  * fifty simultaneous readers of a new option share one computation. (How fast, and how /health fares
  * under load, is measured in `npm run bench`, not here.)
+ *
+ * Basis: an invariant of our own (stored equals computed). gofOf itself is checked against outside
+ * references elsewhere: numpy's pinv and quantiles in tests/gof/gof.test.ts (Hyndman & Fan 1996,
+ * type 7), and the p-value's calibration in tests/gof/calibration.test.ts.
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
