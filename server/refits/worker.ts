@@ -14,12 +14,13 @@
  * Methodology 31 (the estimator); METHODS.md sections 3 (simulation from a start wave) and 4.
  */
 import { buildEffects } from '../engine/effects';
-import { DEFAULT_ROUND_BUDGET, fitSaom } from '../engine/estimate';
+import { fitSaom } from '../engine/estimate';
 import { deriveSeed, createRng } from '../engine/prng';
 import { simulatePeriod } from '../engine/simulate';
 import { NetworkState } from '../engine/state';
 import type { ChunkContext } from '../jobs/registry';
 import { effectKey, effectSpecs, paramPlans, periodInputs, ratePlans, rateKey, sortedRates, type FitPeriodData } from '../models/modelData';
+import { FIT_ROUND_BUDGET } from '../models/progress';
 import { resultsFromFit } from '../models/results';
 import type { RefitChunk, RefitChunkResult, RefitContext } from './context';
 
@@ -67,9 +68,9 @@ export function runRefit(context: RefitContext, chunk: RefitChunk, ctx?: ChunkCo
   try {
     const fit = fitSaom(
       { n: context.n, periods: periodInputs(panel, spec), rates, params, seed },
-      // The same automatic continuation as a fit (the estimator's own rounds, shared code; seeded, so a
-      // re-fit rerun after a restart gives the identical result).
-      { phase3Runs: context.phase3Runs, maxRounds: DEFAULT_ROUND_BUDGET, ...(derivative ? { initialDerivative: derivative } : {}) },
+      // The same automatic continuation as a fit, with the fit's own round budget (seeded, so a re-fit
+      // rerun after a restart gives the identical result).
+      { phase3Runs: context.phase3Runs, maxRounds: FIT_ROUND_BUDGET, ...(derivative ? { initialDerivative: derivative } : {}) },
     );
     const seconds = (performance.now() - started) / 1000;
     const results = resultsFromFit(spec, fit, seconds);
